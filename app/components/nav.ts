@@ -1,0 +1,16 @@
+import type { Capability } from "#app/utils/permissions.ts";
+
+// The main navigation. Each entry names the capability it needs; the layout shows only the
+// entries the signed-in role has. Add an entry when a new section lands.
+export type NavItem = { to: string; label: string; capability: Capability; end?: boolean };
+
+export const MAIN_NAV: NavItem[] = [
+  { to: "/", label: "Overview", capability: "view-sites", end: true },
+];
+
+export const ADMIN_NAV: NavItem[] = [
+  { to: "/admin/people", label: "People", capability: "administer" },
+  { to: "/admin/sites", label: "Sites", capability: "administer" },
+  { to: "/admin/loggers", label: "Loggers", capability: "administer" },
+  { to: "/admin/outbox", label: "Mail outbox", capability: "administer" },
+];

@@ -1,0 +1,43 @@
+import { isRouteErrorResponse, Links, Meta, Outlet, Scripts, ScrollRestoration } from "react-router";
+import type { Route } from "./+types/root";
+import "./app.css";
+import { ErrorPage } from "./components/error-page.tsx";
+
+export const meta: Route.MetaFunction = () => [{ title: "Ripplemark" }];
+
+export function Layout({ children }: { children: React.ReactNode }) {
+  return (
+    <html lang="en-GB">
+      <head>
+        <meta charSet="utf-8" />
+        <meta name="viewport" content="width=device-width, initial-scale=1" />
+        <link rel="icon" href="/favicon.svg" type="image/svg+xml" />
+        <Meta />
+        <Links />
+      </head>
+      <body className="min-h-screen">
+        {children}
+        <ScrollRestoration />
+        <Scripts />
+      </body>
+    </html>
+  );
+}
+
+export default function App() {
+  return <Outlet />;
+}
+
+export function ErrorBoundary({ error }: Route.ErrorBoundaryProps) {
+  if (isRouteErrorResponse(error)) {
+    return <ErrorPage status={error.status} detail={typeof error.data === "string" ? error.data : undefined} />;
+  }
+  const dev = import.meta.env.DEV;
+  return (
+    <ErrorPage
+      status={500}
+      detail={dev && error instanceof Error ? error.message : undefined}
+      stack={dev && error instanceof Error ? error.stack : undefined}
+    />
+  );
+}

@@ -1,0 +1,85 @@
+import { createHash, randomBytes } from "node:crypto";
+import { createCookie, redirect } from "react-router";
+import { db } from "./db.server.ts";
+import { getEnv } from "./env.server.ts";
+import type { SessionUser } from "#app/models/person.server.ts";
+
+// Sessions live in the `session` table; the cookie carries only a random token, signed with
+// SESSION_SECRET (comma-separated list: the first signs, all verify, so secrets can rotate).
+// The table stores the token's SHA-256, so a database leak does not hand out live sessions.
+export const SESSION_DAYS = 14;
+
+let cookie: ReturnType<typeof createCookie> | undefined;
+
+export function sessionCookie() {
+  const env = getEnv();
+  cookie ??= createCookie("rm_session", {
+    httpOnly: true,
+    sameSite: "lax",
+    secure: env.NODE_ENV === "production" && env.APP_ORIGIN.startsWith("https:"),
+    path: "/",
+    secrets: env.SESSION_SECRET,
+    maxAge: SESSION_DAYS * 24 * 3600,
+  });
+  return cookie;
+}
+
+export function hashToken(token: string) {
+  return createHash("sha256").update(token).digest("hex");
+}
+
+async function readToken(request: Request): Promise<string | null> {
+  const value = await sessionCookie().parse(request.headers.get("Cookie"));
+  return typeof value === "string" && value.length > 20 ? value : null;
+}
+
+/** Creates a new session (always a new id: no fixation) and returns its Set-Cookie header. */
+export async function createSession(personId: string, request: Request): Promise<string> {
+  const token = randomBytes(32).toString("base64url");
+  await db
+    .insertInto("session")
+    .values({
+      id: hashToken(token),
+      person_id: personId,
+      expires_at: new Date(Date.now() + SESSION_DAYS * 24 * 3600 * 1000),
+      user_agent: request.headers.get("User-Agent")?.slice(0, 300) ?? null,
+    })
+    .execute();
+  return sessionCookie().serialize(token);
+}
+
+export async function getSessionUser(request: Request): Promise<(SessionUser & { sessionId: string }) | null> {
+  const token = await readToken(request);
+  if (!token) return null;
+  const row = await db
+    .selectFrom("session")
+    .innerJoin("person", "person.id", "session.person_id")
+    .select(["session.id as sessionId", "person.id", "person.email", "person.name", "person.role"])
+    .where("session.id", "=", hashToken(token))
+    .where("session.revoked_at", "is", null)
+    .where("session.expires_at", ">", new Date())
+    .where("person.disabled_at", "is", null)
+    .executeTakeFirst();
+  return row ?? null;
+}
+
+export async function revokeSession(request: Request) {
+  const token = await readToken(request);
+  if (token) {
+    await db.updateTable("session").set({ revoked_at: new Date() }).where("id", "=", hashToken(token)).execute();
+  }
+}
+
+export async function revokeAllSessions(personId: string) {
+  await db
+    .updateTable("session")
+    .set({ revoked_at: new Date() })
+    .where("person_id", "=", personId)
+    .where("revoked_at", "is", null)
+    .execute();
+}
+
+export async function signOutResponse(request: Request, to = "/sign-in") {
+  await revokeSession(request);
+  return redirect(to, { headers: { "Set-Cookie": await sessionCookie().serialize("", { maxAge: 0 }) } });
+}

@@ -1,0 +1,130 @@
+// The database's shape for Kysely, written beside the migrations (one source of truth: when a
+// migration changes a table, change its type here in the same commit).
+import type { ColumnType, Generated, Insertable, Selectable, Updateable } from "kysely";
+
+type Timestamp = ColumnType<Date, Date | string, Date | string>;
+type CreatedAt = ColumnType<Date, Date | string | undefined, never>;
+type UpdatedAt = ColumnType<Date, Date | string | undefined, Date | string>;
+
+export type RoleName = "technician" | "officer" | "manager" | "admin";
+export const ROLE_NAMES = ["technician", "officer", "manager", "admin"] as const satisfies readonly RoleName[];
+
+export type SiteKind = "spring" | "river" | "tidal" | "reservoir" | "treatment-works" | "borehole" | "other";
+export const SITE_KINDS = ["spring", "river", "tidal", "reservoir", "treatment-works", "borehole", "other"] as const satisfies readonly SiteKind[];
+
+export type CompensationMethodName = "linear" | "natural-water";
+
+export interface RoleTable {
+  name: RoleName;
+  label: string;
+  description: string;
+  rank: number;
+}
+
+export interface PersonTable {
+  id: Generated<string>;
+  email: string;
+  name: string;
+  role: RoleName;
+  password_hash: string | null;
+  weekly_digest: Generated<boolean>;
+  disabled_at: Timestamp | null;
+  created_at: CreatedAt;
+  updated_at: UpdatedAt;
+}
+
+export interface SessionTable {
+  id: string;
+  person_id: string;
+  created_at: CreatedAt;
+  expires_at: Timestamp;
+  revoked_at: Timestamp | null;
+  user_agent: string | null;
+}
+
+export interface PasswordTokenTable {
+  token_hash: string;
+  person_id: string;
+  purpose: "reset" | "invite";
+  created_at: CreatedAt;
+  expires_at: Timestamp;
+  used_at: Timestamp | null;
+}
+
+export interface SignInFailureTable {
+  id: Generated<string>;
+  email: string;
+  at: CreatedAt;
+}
+
+export interface SiteTable {
+  id: Generated<string>;
+  code: string;
+  name: string;
+  kind: SiteKind;
+  latitude: number;
+  longitude: number;
+  time_zone: Generated<string>;
+  notes: Generated<string>;
+  compensation_method: Generated<CompensationMethodName>;
+  alpha_per_c: Generated<number>;
+  reference_c: Generated<number>;
+  tds_factor: Generated<number>;
+  settings_version: Generated<number>;
+  created_at: CreatedAt;
+  updated_at: UpdatedAt;
+}
+
+export interface LoggerTable {
+  id: Generated<string>;
+  serial: string;
+  model: Generated<string>;
+  logging_interval_s: Generated<number>;
+  notes: Generated<string>;
+  created_at: CreatedAt;
+}
+
+export interface LoggerDeploymentTable {
+  id: Generated<string>;
+  logger_id: string;
+  site_id: string;
+  deployed_from: Timestamp;
+  deployed_until: Timestamp | null;
+}
+
+export interface SiteAssignmentTable {
+  person_id: string;
+  site_id: string;
+}
+
+export interface AuditEventTable {
+  id: Generated<string>;
+  at: CreatedAt;
+  person_id: string | null;
+  entity: string;
+  entity_id: string;
+  action: string;
+  before: unknown | null;
+  after: unknown | null;
+  reason: string | null;
+}
+
+export interface DB {
+  role: RoleTable;
+  person: PersonTable;
+  session: SessionTable;
+  password_token: PasswordTokenTable;
+  sign_in_failure: SignInFailureTable;
+  site: SiteTable;
+  logger: LoggerTable;
+  logger_deployment: LoggerDeploymentTable;
+  site_assignment: SiteAssignmentTable;
+  audit_event: AuditEventTable;
+}
+
+export type Person = Selectable<PersonTable>;
+export type NewPerson = Insertable<PersonTable>;
+export type PersonUpdate = Updateable<PersonTable>;
+export type Site = Selectable<SiteTable>;
+export type NewSite = Insertable<SiteTable>;
+export type Logger = Selectable<LoggerTable>;

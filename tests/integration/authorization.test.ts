@@ -1,0 +1,100 @@
+import { beforeAll, describe, expect, it } from "vitest";
+import routes from "#app/routes.ts";
+import type { RouteConfigEntry } from "@react-router/dev/routes";
+import { db } from "#app/utils/db.server.ts";
+import { request, signIn, type Jar } from "../support/app.ts";
+import { createPeople, TEST_PASSWORD } from "../support/people.ts";
+import type { RoleName } from "#db/schema.ts";
+
+// The authorisation table: every route in app/routes.ts × every role × signed out. Adding a route
+// without a row here fails the "covers every route" test below.
+const ALL: RoleName[] = ["technician", "officer", "manager", "admin"];
+type Row = {
+  pattern: string; // as written in routes.ts (path params as :name)
+  path?: string; // a concrete path to request; defaults to pattern
+  public?: true; // reachable signed out
+  get?: RoleName[]; // roles that get 200 on GET
+  post?: RoleName[]; // roles whose POST passes the role check (anything but 302-to-sign-in/401/403)
+  api?: true; // answers 401 JSON instead of redirecting when signed out
+  skip?: string; // why the generic checks do not apply
+};
+
+export const AUTH_TABLE: Row[] = [
+  { pattern: "sign-in", public: true },
+  { pattern: "sign-out", public: true, skip: "POST-only sign-out; GET redirects home" },
+  { pattern: "forgot-password", public: true },
+  { pattern: "reset-password/:token", path: "reset-password/not-a-real-token", public: true },
+  { pattern: "/", get: ALL },
+  { pattern: "account", get: ALL, post: ALL },
+  { pattern: "api/health", public: true },
+  { pattern: "*", path: "no/such/page", public: true, skip: "catch-all answers 404 to everyone" },
+];
+
+function flatten(entries: RouteConfigEntry[], parent = ""): string[] {
+  return entries.flatMap((e) => {
+    const here = e.index ? parent || "/" : e.path ? [parent, e.path].filter(Boolean).join("/") : parent;
+    const own = e.path || e.index ? [here] : [];
+    return [...own, ...(e.children ? flatten(e.children, here) : [])];
+  });
+}
+
+let jars: Record<RoleName, Jar>;
+
+beforeAll(async () => {
+  await createPeople(db);
+  jars = Object.fromEntries(
+    await Promise.all(ALL.map(async (r) => [r, await signIn(`${r}@test.example`, TEST_PASSWORD)] as const)),
+  ) as Record<RoleName, Jar>;
+});
+
+describe("authorisation table", () => {
+  it("covers every route in app/routes.ts", async () => {
+    const declared = new Set(flatten(await routes));
+    const covered = new Set(AUTH_TABLE.map((r) => r.pattern));
+    expect([...declared].filter((p) => !covered.has(p))).toEqual([]);
+    expect([...covered].filter((p) => !declared.has(p))).toEqual([]);
+  });
+
+  for (const row of AUTH_TABLE.filter((r) => !r.public && !r.skip)) {
+    const path = "/" + (row.path ?? row.pattern).replace(/^\//, "");
+    it(`${path}: signed out is sent to sign-in`, async () => {
+      const res = await request(path);
+      if (row.api) expect(res.status).toBe(401);
+      else {
+        expect(res.status).toBe(302);
+        expect(res.headers.get("Location")).toMatch(/^\/sign-in/);
+      }
+    });
+    for (const role of ALL) {
+      const getAllowed = row.get?.includes(role) ?? false;
+      it(`${path}: GET as ${role} → ${getAllowed ? 200 : 403}`, async () => {
+        const res = await request(path, { jar: jars[role] });
+        expect(res.status).toBe(getAllowed ? 200 : 403);
+      });
+      const postAllowed = row.post?.includes(role) ?? false;
+      it(`${path}: POST as ${role} ${postAllowed ? "passes the role check" : "→ 403"}`, async () => {
+        const res = await request(path, { jar: jars[role], form: { intent: "__probe__" } });
+        if (postAllowed) expect([200, 204, 302, 400, 404, 405]).toContain(res.status);
+        else expect([403, 405]).toContain(res.status);
+      });
+    }
+    it(`${path}: POST signed out is refused`, async () => {
+      const res = await request(path, { form: { intent: "__probe__" } });
+      expect([302, 401, 405]).toContain(res.status);
+      if (res.status === 302) expect(res.headers.get("Location")).toMatch(/^\/sign-in/);
+    });
+  }
+
+  for (const row of AUTH_TABLE.filter((r) => r.public && !r.skip)) {
+    const path = "/" + (row.path ?? row.pattern).replace(/^\//, "");
+    it(`${path}: public page answers signed out`, async () => {
+      const res = await request(path);
+      expect(res.status).toBe(200);
+    });
+  }
+
+  it("unknown pages answer 404 for everyone", async () => {
+    expect((await request("/no/such/page")).status).toBe(404);
+    expect((await request("/no/such/page", { jar: jars.admin })).status).toBe(404);
+  });
+});
