@@ -101,6 +101,32 @@ export function specificConductance(
 }
 
 /**
+ * Compensation factor for bulk paths: as compensationFactor, but returns NaN instead of
+ * throwing when the temperature is outside the method's range. The method's α and
+ * reference are not checked here: validate the method once with compensationFactor.
+ */
+export function compensationFactorOrNaN(temperatureC: number, method: CompensationMethod): number {
+  const t = temperatureC;
+  if (method.kind === "natural-water") {
+    if (!(t >= 0 && t <= 35.9)) return NaN;
+    const x = t * 10;
+    let i = Math.floor(x);
+    let frac = x - i;
+    if (i >= 359) {
+      i = 358;
+      frac = 1;
+    }
+    const lo = ISO_7888_F25[i];
+    const f25 = lo + frac * (ISO_7888_F25[i + 1] - lo);
+    return method.referenceC === 20 ? f25 / ISO_7888_F25_AT_20C : f25;
+  }
+  const denominator = 1 + (method.alphaPerC ?? DEFAULT_ALPHA_PER_C) * (t - (method.referenceC ?? 25));
+  return t >= LINEAR_TEMPERATURE_RANGE_C[0] && t <= LINEAR_TEMPERATURE_RANGE_C[1] && denominator > 0.05
+    ? 1 / denominator
+    : NaN;
+}
+
+/**
  * Bulk form of specificConductance for ingest: writes SC into `out` (same length as the
  * inputs) and returns it. Never throws inside the loop and allocates nothing: a reading
  * whose conductivity is negative or not finite, or whose temperature is outside the
@@ -117,41 +143,9 @@ export function specificConductanceInto(
     throw new RangeError("conductivity, temperature and output arrays must have the same length");
   }
   compensationFactor(25, method); // validates α and the reference once
-  if (method.kind === "natural-water") {
-    const scale = (method.referenceC ?? 25) === 25 ? 1 : 1 / ISO_7888_F25_AT_20C;
-    const table = ISO_7888_F25;
-    for (let k = 0; k < n; k++) {
-      const c = conductivityUsPerCm[k];
-      const t = temperatureC[k];
-      // Written so that NaN fails every comparison and lands in the else branch.
-      if (c >= 0 && c < Infinity && t >= 0 && t <= 35.9) {
-        const x = t * 10;
-        let i = Math.floor(x);
-        let frac = x - i;
-        if (i >= 359) {
-          i = 358;
-          frac = 1;
-        }
-        const lo = table[i];
-        out[k] = c * scale * (lo + frac * (table[i + 1] - lo));
-      } else {
-        out[k] = NaN;
-      }
-    }
-    return out;
-  }
-  const alpha = method.alphaPerC ?? DEFAULT_ALPHA_PER_C;
-  const referenceC = method.referenceC ?? 25;
-  const [lo, hi] = LINEAR_TEMPERATURE_RANGE_C;
   for (let k = 0; k < n; k++) {
     const c = conductivityUsPerCm[k];
-    const t = temperatureC[k];
-    const denominator = 1 + alpha * (t - referenceC);
-    if (c >= 0 && c < Infinity && t >= lo && t <= hi && denominator > 0.05) {
-      out[k] = c / denominator;
-    } else {
-      out[k] = NaN;
-    }
+    out[k] = c >= 0 && c < Infinity ? c * compensationFactorOrNaN(temperatureC[k], method) : NaN;
   }
   return out;
 }

@@ -257,10 +257,47 @@ function getHillRatioTable(): Float64Array {
 }
 
 /**
+ * Practical salinity of one logged reading, for bulk paths: conductivity in µS/cm,
+ * ITS-90 temperature, sea pressure in dbar (not checked: pass a validated value). The
+ * formulas of practicalSalinity, inlined; returns NaN instead of throwing for negative or
+ * non-finite conductivity, temperature outside −2…35 °C or S above 42. No allocation.
+ */
+export function practicalSalinityOrNaN(conductivityUsPerCm: number, temperatureC: number, pressureDbar = 0): number {
+  const c = conductivityUsPerCm;
+  const t90 = temperatureC;
+  if (!(c >= 0 && c < Infinity && t90 >= -2 && t90 <= 35)) return NaN;
+  const hill = hillRatioTable ?? getHillRatioTable();
+  const t = 1.00024 * t90;
+  const r = c * (1 / (1000 * C35_15_0_MS_PER_CM));
+  const rt = C0 + t * (C1 + t * (C2 + t * (C3 + t * C4)));
+  const rp =
+    pressureDbar === 0
+      ? 1
+      : 1 + (pressureDbar * (E1 + pressureDbar * (E2 + pressureDbar * E3))) / (1 + t * (D1 + t * D2) + r * (D3 + t * D4));
+  const x = Math.sqrt(r / (rp * rt));
+  const ft = (t - 15) / (1 + K * (t - 15));
+  let s =
+    A0 + ft * B0 +
+    x * (A1 + ft * B1 + x * (A2 + ft * B2 + x * (A3 + ft * B3 + x * (A4 + ft * B4 + x * (A5 + ft * B5)))));
+  if (s < 2) {
+    const bigX = 400 * x * x;
+    const sy = 10 * x;
+    const raw = s - A0 / (1 + bigX * (1.5 + bigX)) - (B0 * ft) / (1 + sy * (1 + sy * (1 + sy)));
+    const pos = (t90 - HILL_TABLE_START_C) * 10;
+    let i = Math.floor(pos);
+    if (i >= HILL_TABLE_STEPS) i = HILL_TABLE_STEPS - 1;
+    const lo = hill[i];
+    s = (lo + (pos - i) * (hill[i + 1] - lo)) * raw;
+  }
+  return s <= 42 ? s : NaN;
+}
+
+/**
  * Bulk practical salinity for ingest, from in-situ conductivity in µS/cm (as logged) and
  * ITS-90 temperature, at one sea pressure for all readings. Same formulas as
  * practicalSalinity. No allocation and no throw in the loop: a reading with negative or
- * non-finite conductivity, temperature outside −2…35 °C, or S above 42 gives NaN.
+ * non-finite conductivity, temperature outside −2…35 °C, or S above 42 gives NaN. The
+ * pressure is checked once (RangeError).
  */
 export function practicalSalinityInto(
   conductivityUsPerCm: Float64Array,
@@ -273,36 +310,9 @@ export function practicalSalinityInto(
     throw new RangeError("conductivity, temperature and output arrays must have the same length");
   }
   checkTemperaturePressure(25, pressureDbar);
-  const hill = getHillRatioTable();
-  const pTerm = pressureTerm(pressureDbar);
-  const toRatio = 1 / (1000 * C35_15_0_MS_PER_CM);
+  getHillRatioTable();
   for (let k = 0; k < n; k++) {
-    const c = conductivityUsPerCm[k];
-    const t90 = temperatureC[k];
-    if (!(c >= 0 && c < Infinity && t90 >= -2 && t90 <= 35)) {
-      out[k] = NaN;
-      continue;
-    }
-    const t = 1.00024 * t90;
-    const r = c * toRatio;
-    const rt = C0 + t * (C1 + t * (C2 + t * (C3 + t * C4)));
-    const rp = pTerm === 0 ? 1 : 1 + pTerm / (1 + t * (D1 + t * D2) + r * (D3 + t * D4));
-    const x = Math.sqrt(r / (rp * rt));
-    const ft = (t - 15) / (1 + K * (t - 15));
-    let s =
-      A0 + ft * B0 +
-      x * (A1 + ft * B1 + x * (A2 + ft * B2 + x * (A3 + ft * B3 + x * (A4 + ft * B4 + x * (A5 + ft * B5)))));
-    if (s < 2) {
-      const bigX = 400 * x * x;
-      const sy = 10 * x;
-      const raw = s - A0 / (1 + bigX * (1.5 + bigX)) - (B0 * ft) / (1 + sy * (1 + sy * (1 + sy)));
-      const pos = (t90 - HILL_TABLE_START_C) * 10;
-      let i = Math.floor(pos);
-      if (i >= HILL_TABLE_STEPS) i = HILL_TABLE_STEPS - 1;
-      const lo = hill[i];
-      s = (lo + (pos - i) * (hill[i + 1] - lo)) * raw;
-    }
-    out[k] = s <= 42 ? s : NaN;
+    out[k] = practicalSalinityOrNaN(conductivityUsPerCm[k], temperatureC[k], pressureDbar);
   }
   return out;
 }

@@ -1,0 +1,111 @@
+// Ripplemark's conductivity science core: pure functions, no I/O, shared by browser and
+// server. Units: conductivity µS/cm (salinity functions take mS/cm where PSS-78 does),
+// temperature °C (ITS-90), concentrations mg/L, molar amounts mol/L, pressure dbar.
+
+export {
+  CONDUCTIVITY_UNITS,
+  TEMPERATURE_UNITS,
+  fromMicrosiemensPerCm,
+  parseConductivityUnit,
+  parseTemperatureUnit,
+  toCelsius,
+  toMicrosiemensPerCm,
+  type ConductivityUnit,
+  type TemperatureUnit,
+} from "./units.ts";
+export {
+  DEFAULT_ALPHA_PER_C,
+  LINEAR_TEMPERATURE_RANGE_C,
+  compensationFactor,
+  compensationFactorOrNaN,
+  iso7888F25Unchecked,
+  specificConductance,
+  specificConductanceInto,
+  type CompensationMethod,
+} from "./compensation.ts";
+export { ISO_7888_F25, ISO_7888_F25_AT_20C, ISO_7888_F25_TABLE_END_C, ISO_7888_F25_TABLE_START_C } from "./iso7888-table.ts";
+export {
+  TDS_FACTOR_RANGE,
+  TDS_FACTOR_TYPICAL_RANGE,
+  estimateTds,
+  tdsFactorWarning,
+  tdsInto,
+  tdsMgPerL,
+  type TdsEstimate,
+} from "./tds.ts";
+export {
+  C35_15_0_MS_PER_CM,
+  PSS78_PRESSURE_RANGE_DBAR,
+  PSS78_SALINITY_MAX,
+  PSS78_TEMPERATURE_RANGE_C,
+  conductivityFromSalinity,
+  conductivityRatioFromSalinity,
+  hillRatioAtS2,
+  practicalSalinity,
+  practicalSalinityInto,
+  practicalSalinityOrNaN,
+  ratioFromSalinityIpts68Unchecked,
+  salinityFromConductivityRatio,
+  salinityFromRatioIpts68Unchecked,
+  salinityFromRt,
+  t68FromT90,
+} from "./salinity.ts";
+export {
+  FARADAY_C_PER_MOL,
+  IONS,
+  ION_NAMES,
+  ionData,
+  ionMobility,
+  ionMolarConductivity,
+  limitingMolarConductivity,
+  mgPerLToMeqPerL,
+  mgPerLToMmolPerL,
+  molarConductivity,
+  sCm2ToSM2,
+  transferNumbers,
+  type IonData,
+  type IonName,
+} from "./ions.ts";
+export {
+  ACTIVITY_MODEL_LIMIT_MOL_PER_L,
+  activityCoefficient,
+  debyeHuckelA,
+  debyeHuckelATheoretical,
+  debyeHuckelB,
+  ionicStrength,
+  ionicStrengthFromSpecificConductance,
+  meanActivityCoefficient,
+  type ActivityModel,
+  type ActivityOptions,
+  type IonAmount,
+} from "./activity.ts";
+export {
+  CALCULATED_EC_IONIC_STRENGTH_LIMIT,
+  calculatedConductivity,
+  calculatedTds,
+  ecRatioCheck,
+  ionBalance,
+  ionSumToEcCheck,
+  labCheck,
+  tdsRatioCheck,
+  tdsToEcCheck,
+  type CalculatedConductivity,
+  type CheckResult,
+  type IonBalance,
+  type IonLine,
+  type LabCheck,
+  type SkippedCheck,
+  type Verdict,
+  type WaterAnalysis,
+} from "./lab-check.ts";
+export {
+  CELL_CONSTANT_CHANGE_WARNING_PERCENT,
+  KCL_STANDARDS,
+  NIST_KCL_CURVES,
+  cellConstant,
+  kclStandardConductivity,
+  type CellConstantInput,
+  type CellConstantResult,
+  type KclStandard,
+} from "./kcl-standards.ts";
+export { deriveReadingInto, deriveReadings, deriveReadingsInto, type DeriveOptions, type DerivedReadings } from "./bulk.ts";
