@@ -1,12 +1,12 @@
-import { promises as fs } from "node:fs";
-import path from "node:path";
-import { fileURLToPath } from "node:url";
-import { FileMigrationProvider, Migrator, type Kysely } from "kysely";
+import { Migrator, type Kysely, type MigrationProvider } from "kysely";
+import { migrations } from "./migrations/index.ts";
 
-const migrationFolder = path.join(path.dirname(fileURLToPath(import.meta.url)), "migrations");
+// Migrations are imported statically (db/migrations/index.ts) rather than discovered on disk, so
+// they load the same way under tsx, vitest and the production build.
+const provider: MigrationProvider = { getMigrations: async () => migrations };
 
 export function createMigrator(db: Kysely<any>) {
-  return new Migrator({ db, provider: new FileMigrationProvider({ fs, path, migrationFolder }) });
+  return new Migrator({ db, provider });
 }
 
 /** Runs every pending migration; throws with the failing migration's name on error. */
@@ -17,4 +17,17 @@ export async function migrateToLatest(db: Kysely<any>, log: (line: string) => vo
     const failed = results?.find((r) => r.status === "Error")?.migrationName ?? "(unknown)";
     throw new Error(`migration ${failed} failed: ${error instanceof Error ? error.message : String(error)}`);
   }
+}
+
+/** The app's migrations and the job queue's schema, for a database URL (scripts and tests). */
+export async function migrateAll(connectionString: string, log: (line: string) => void = () => {}) {
+  const { createDb } = await import("./connect.ts");
+  const { runMigrations } = await import("graphile-worker");
+  const db = createDb(connectionString, 2);
+  try {
+    await migrateToLatest(db, log);
+  } finally {
+    await db.destroy();
+  }
+  await runMigrations({ connectionString });
 }

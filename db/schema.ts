@@ -109,7 +109,7 @@ export interface AuditEventTable {
   reason: string | null;
 }
 
-export interface DB {
+export interface DB extends IngestTables {
   role: RoleTable;
   person: PersonTable;
   session: SessionTable;
@@ -128,3 +128,90 @@ export type PersonUpdate = Updateable<PersonTable>;
 export type Site = Selectable<SiteTable>;
 export type NewSite = Insertable<SiteTable>;
 export type Logger = Selectable<LoggerTable>;
+
+// ---- ingest (0002) ----
+export type UploadStatus = "awaiting-file" | "queued" | "processing" | "done" | "failed" | "duplicate";
+
+export interface ImportProfileTable {
+  id: Generated<string>;
+  name: string;
+  header_signature: string;
+  settings: ColumnType<unknown, string, string>;
+  created_by: string | null;
+  created_at: CreatedAt;
+  updated_at: UpdatedAt;
+}
+
+export interface DerivationSettingsTable {
+  id: Generated<number>;
+  site_id: string;
+  compensation_method: CompensationMethodName;
+  alpha_per_c: number;
+  reference_c: number;
+  tds_factor: number;
+  created_at: CreatedAt;
+  created_by: string | null;
+}
+
+export interface UploadTable {
+  id: Generated<string>;
+  object_key: string;
+  file_name: string;
+  size_bytes: number;
+  content_type: string;
+  sha256: string;
+  site_id: string;
+  logger_id: string;
+  profile_id: string | null;
+  uploaded_by: string | null;
+  status: Generated<UploadStatus>;
+  duplicate_of: string | null;
+  message: string | null;
+  rows_total: Generated<number>;
+  rows_accepted: Generated<number>;
+  rows_rejected: Generated<number>;
+  rows_duplicate: Generated<number>;
+  bytes_processed: Generated<number>;
+  first_reading_at: Timestamp | null;
+  last_reading_at: Timestamp | null;
+  attempts: Generated<number>;
+  created_at: CreatedAt;
+  confirmed_at: Timestamp | null;
+  started_at: Timestamp | null;
+  finished_at: Timestamp | null;
+}
+
+export interface UploadErrorTable {
+  upload_id: string;
+  row_number: number;
+  column_name: string;
+  raw_value: string;
+  reason: string;
+}
+
+export interface ReadingsTable {
+  site_id: string;
+  logger_id: string;
+  time: Timestamp;
+  upload_id: string;
+  row_number: number;
+  conductivity_us_cm: number | null;
+  logger_sc_us_cm: number | null;
+  temperature_c: number | null;
+  ph: number | null;
+  depth_m: number | null;
+  battery_v: number | null;
+  sc25_us_cm: number | null;
+  tds_mg_l: number | null;
+  salinity_psu: number | null;
+  settings_id: number | null;
+  quality_flag: string | null;
+}
+
+export interface IngestTables {
+  import_profile: ImportProfileTable;
+  derivation_settings: DerivationSettingsTable;
+  upload: UploadTable;
+  upload_error: UploadErrorTable;
+  readings: ReadingsTable;
+}

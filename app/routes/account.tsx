@@ -2,7 +2,7 @@ import { getFormProps, useForm } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
 import { data, Form, redirect, useNavigation } from "react-router";
 import { z } from "zod";
-import { PASSWORD_MIN_LENGTH } from "#app/utils/auth-schemas.ts";
+import { newPasswordFields, PASSWORD_MIN_LENGTH } from "#app/utils/auth-schemas.ts";
 import type { Route } from "./+types/account";
 import { Field, FormErrors } from "#app/components/forms.tsx";
 import { findPersonById } from "#app/models/person.server.ts";
@@ -17,9 +17,8 @@ export const meta: Route.MetaFunction = () => [{ title: "Your account · Ripplem
 const passwordSchema = z
   .object({
     intent: z.literal("password"),
-    current: z.string().min(1, "Enter your current password"),
-    password: z.string().min(PASSWORD_MIN_LENGTH, `Use at least ${PASSWORD_MIN_LENGTH} characters`).max(200),
-    confirm: z.string().min(1, "Type the new password again"),
+    current: z.string({ error: "Enter your current password" }),
+    ...newPasswordFields,
   })
   .refine((v) => v.password === v.confirm, { path: ["confirm"], message: "The two passwords differ" });
 

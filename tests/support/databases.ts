@@ -1,6 +1,5 @@
 import pg from "pg";
-import { createDb } from "#db/connect.ts";
-import { migrateToLatest } from "#db/migrator.ts";
+import { migrateAll } from "#db/migrator.ts";
 import { databaseUrl, TEMPLATE_DB } from "./env.ts";
 
 async function admin<T>(fn: (client: pg.Client) => Promise<T>): Promise<T> {
@@ -24,12 +23,7 @@ export async function prepareTemplate(name = TEMPLATE_DB) {
     await c.query(`drop database if exists ${ident(name)} with (force)`);
     await c.query(`create database ${ident(name)}`);
   });
-  const db = createDb(databaseUrl(name), 2);
-  try {
-    await migrateToLatest(db);
-  } finally {
-    await db.destroy();
-  }
+  await migrateAll(databaseUrl(name));
 }
 
 /** A fresh database copied from the migrated template (about 100 ms). */

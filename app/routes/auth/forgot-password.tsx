@@ -13,7 +13,7 @@ import { assertSameOrigin } from "#app/utils/auth.server.ts";
 export const meta: Route.MetaFunction = () => [{ title: "Forgot password · Ripplemark" }];
 
 const schema = z.object({
-  email: z.string().trim().min(1, "Enter your e-mail address").email("Enter a valid e-mail address"),
+  email: z.string({ error: "Enter your e-mail address" }).trim().min(1, "Enter your e-mail address").email("Enter a valid e-mail address"),
 });
 
 export async function action({ request }: Route.ActionArgs) {

@@ -2,7 +2,7 @@ import { getFormProps, useForm } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
 import { data, Form, Link, redirect, useNavigation } from "react-router";
 import { z } from "zod";
-import { PASSWORD_MIN_LENGTH } from "#app/utils/auth-schemas.ts";
+import { newPasswordFields, PASSWORD_MIN_LENGTH } from "#app/utils/auth-schemas.ts";
 import type { Route } from "./+types/reset-password";
 import { AuthFrame } from "#app/components/auth-frame.tsx";
 import { Field, FormErrors } from "#app/components/forms.tsx";
@@ -16,8 +16,7 @@ export const meta: Route.MetaFunction = () => [{ title: "Choose a password · Ri
 
 const schema = z
   .object({
-    password: z.string().min(PASSWORD_MIN_LENGTH, `Use at least ${PASSWORD_MIN_LENGTH} characters`).max(200, "Use at most 200 characters"),
-    confirm: z.string().min(1, "Type the password again"),
+    ...newPasswordFields,
   })
   .refine((v) => v.password === v.confirm, { path: ["confirm"], message: "The two passwords differ" });
 

@@ -1,0 +1,23 @@
+import pg from "pg";
+import { getEnv } from "#app/utils/env.server.ts";
+
+// A raw pg pool for work Kysely does not do (COPY streams). Same database, separate small pool.
+const globalForPool = globalThis as unknown as { __ripplemarkRawPool?: pg.Pool };
+
+export function rawPool() {
+  if (!globalForPool.__ripplemarkRawPool) {
+    const pool = new pg.Pool({ connectionString: getEnv().DATABASE_URL, max: 4 });
+    pool.on("error", (err) => console.error("[db] idle raw client error:", err.message));
+    globalForPool.__ripplemarkRawPool = pool;
+  }
+  return globalForPool.__ripplemarkRawPool;
+}
+
+export async function withClient<T>(fn: (client: pg.PoolClient) => Promise<T>): Promise<T> {
+  const client = await rawPool().connect();
+  try {
+    return await fn(client);
+  } finally {
+    client.release();
+  }
+}

@@ -1,0 +1,29 @@
+import { sql, type Kysely, type Transaction } from "kysely";
+import type { DB } from "#db/schema.ts";
+import { db } from "./db.server.ts";
+
+// The job queue is graphile-worker: jobs live in PostgreSQL (schema graphile_worker), so a job can
+// be enqueued in the same transaction as the change that needs it, and more workers on more
+// machines simply take jobs from the same database.
+export type JobName = "ingest-upload" | "recompute-site";
+
+export type JobPayloads = {
+  "ingest-upload": { uploadId: string };
+  "recompute-site": { siteId: string; settingsId: number };
+};
+
+export async function enqueue<N extends JobName>(
+  name: N,
+  payload: JobPayloads[N],
+  options: { jobKey?: string; maxAttempts?: number; runAt?: Date; queueName?: string } = {},
+  trx: Kysely<DB> | Transaction<DB> = db,
+) {
+  await sql`select graphile_worker.add_job(
+      ${name}::text,
+      ${JSON.stringify(payload)}::json,
+      queue_name => ${options.queueName ?? null}::text,
+      run_at => ${options.runAt ?? null}::timestamptz,
+      max_attempts => ${options.maxAttempts ?? 5}::int,
+      job_key => ${options.jobKey ?? null}::text
+    )`.execute(trx);
+}

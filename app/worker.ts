@@ -1,0 +1,28 @@
+// The background worker: takes jobs from the PostgreSQL queue (graphile-worker). Run as its own
+// process (`node --import tsx app/worker.ts`); start more of them, on more machines, to scale.
+import { run, type TaskList } from "graphile-worker";
+import { getEnv } from "#app/utils/env.server.ts";
+import { runIngestJob } from "#app/jobs/ingest.server.ts";
+import { runRecomputeJob } from "#app/jobs/recompute.server.ts";
+
+const tasks: TaskList = {
+  "ingest-upload": async (payload, helpers) => {
+    const { uploadId } = payload as { uploadId: string };
+    await runIngestJob(uploadId, helpers.job.attempts);
+  },
+  "recompute-site": async (payload) => {
+    const { siteId, settingsId } = payload as { siteId: string; settingsId: number };
+    await runRecomputeJob(siteId, settingsId);
+  },
+};
+
+const env = getEnv();
+const runner = await run({
+  connectionString: env.DATABASE_URL,
+  concurrency: Number(process.env.WORKER_CONCURRENCY ?? 2),
+  taskList: tasks,
+  noHandleSignals: false,
+  pollInterval: 1000,
+});
+console.log("[worker] ready");
+await runner.promise;

@@ -1,0 +1,64 @@
+import { spawn, type ChildProcess } from "node:child_process";
+import path from "node:path";
+import type { TestProject } from "vitest/node";
+import { createDb } from "#db/connect.ts";
+import { seedDemo } from "#db/seed.ts";
+import { createTestDatabase, dropTestDatabases, prepareTemplate } from "../support/databases.ts";
+import { applyTestEnv, databaseUrl } from "../support/env.ts";
+
+// Browser tests run against the production build served on its own port, with a fresh database
+// holding the demo seed, and the background worker when there is one.
+const root = path.resolve(import.meta.dirname, "../..");
+const children: ChildProcess[] = [];
+
+async function waitFor(url: string, ms: number) {
+  const end = Date.now() + ms;
+  while (Date.now() < end) {
+    try {
+      if ((await fetch(url)).ok) return;
+    } catch {}
+    await new Promise((r) => setTimeout(r, 200));
+  }
+  throw new Error(`${url} did not answer within ${ms} ms`);
+}
+
+export default async function setup(project: TestProject) {
+  await dropTestDatabases("rm_e2e_");
+  await prepareTemplate();
+  const name = await createTestDatabase("rm_e2e");
+  const port = Number(process.env.E2E_APP_PORT ?? 3211);
+  const origin = `http://127.0.0.1:${port}`;
+  process.env.APP_ORIGIN = origin;
+  applyTestEnv(name);
+  process.env.NODE_ENV = "production";
+  const db = createDb(databaseUrl(name), 2);
+  await seedDemo(db);
+  await db.destroy();
+
+  const env = { ...process.env, PORT: String(port), HOST: "127.0.0.1" };
+  const app = spawn(process.execPath, [path.join(root, "node_modules/@react-router/serve/bin.js"), "./build/server/index.js"], {
+    cwd: root,
+    env,
+    stdio: ["ignore", "inherit", "inherit"],
+  });
+  children.push(app);
+  if (await import("node:fs").then((fs) => fs.existsSync(path.join(root, "app/worker.ts")))) {
+    children.push(spawn(process.execPath, ["--import", "tsx", "app/worker.ts"], { cwd: root, env, stdio: ["ignore", "inherit", "inherit"] }));
+  }
+  await waitFor(`${origin}/api/health`, 30_000);
+  project.provide("baseURL", origin);
+  project.provide("databaseUrl", databaseUrl(name));
+  project.provide("mailboxUrl", process.env.MAILBOX_URL!);
+
+  return async () => {
+    for (const c of children) c.kill("SIGTERM");
+  };
+}
+
+declare module "vitest" {
+  export interface ProvidedContext {
+    baseURL: string;
+    databaseUrl: string;
+    mailboxUrl: string;
+  }
+}
