@@ -47,15 +47,19 @@ export function debyeHuckelB(temperatureC: number): number {
 }
 
 /**
- * Theoretical A = 1.82483×10⁶ √ρ (εT)^(-3/2) with the relative permittivity of water
- * of Malmberg & Maryott (1956), J. Res. NBS 56, 1: ε = 87.740 − 0.40008 t + 9.398×10⁻⁴ t²
- * − 1.410×10⁻⁶ t³, and ρ = 1 kg/L (dilute). Kept as an independent cross-check of the fit.
+ * Theoretical A = 1.82483×10⁶ √ρ (εT)^(-3/2) (molal scale, ρ in kg/L) with the relative
+ * permittivity of water of Malmberg & Maryott (1956), J. Res. NBS 56, 1:
+ * ε = 87.740 − 0.40008 t + 9.398×10⁻⁴ t² − 1.410×10⁻⁶ t³, and the density of air-free water
+ * of Tanaka et al. (2001), Metrologia 38, 301 (coefficients from memory). Kept as an
+ * independent cross-check of the fit in debyeHuckelA.
  */
 export function debyeHuckelATheoretical(temperatureC: number): number {
   checkTemperature(temperatureC);
   const t = temperatureC;
   const epsilon = 87.74 - 0.40008 * t + 9.398e-4 * t * t - 1.41e-6 * t * t * t;
-  return 1.82483e6 * Math.pow(epsilon * (t + 273.15), -1.5);
+  const densityKgPerL =
+    0.99997495 * (1 - ((t - 3.983035) ** 2 * (t + 301.797)) / (522528.9 * (t + 69.34881)));
+  return 1.82483e6 * Math.sqrt(densityKgPerL) * Math.pow(epsilon * (t + 273.15), -1.5);
 }
 
 // log10 γ for one unit of z² (so that log γ(z) = z² × this, and log γ± = |z₊z₋| × this).

@@ -49,8 +49,9 @@ export function parseConductivityUnit(text: string): ConductivityUnit | null {
  * separate word, so "Cond (mS/cm)" is not mistaken for Celsius. Common practice.
  */
 export function parseTemperatureUnit(text: string): TemperatureUnit | null {
-  // NFKC turns ℃ into °C and ℉ into °F; the ordinal sign º is often typed for °.
-  const t = text.normalize("NFKC").replace(/º/g, "°").toLowerCase();
+  // The ordinal sign º is often typed for ° (and NFKC would turn it into "o");
+  // NFKC then turns ℃ into °C and ℉ into °F.
+  const t = text.replace(/º/g, "°").normalize("NFKC").toLowerCase();
   if (/°\s*c|deg(?:rees?)?\s*\.?\s*c(?![a-z])|celsius|centigrade/.test(t)) return "°C";
   if (/°\s*f|deg(?:rees?)?\s*\.?\s*f(?![a-z])|fahrenheit/.test(t)) return "°F";
   if (/kelvin/.test(t)) return "K";
