@@ -1,4 +1,5 @@
 import { spawn, type ChildProcess } from "node:child_process";
+import { mkdirSync, openSync } from "node:fs";
 import path from "node:path";
 import type { TestProject } from "vitest/node";
 import { createDb } from "#db/connect.ts";
@@ -36,14 +37,17 @@ export default async function setup(project: TestProject) {
   await db.destroy();
 
   const env = { ...process.env, PORT: String(port), HOST: "127.0.0.1" };
+  // Server and worker output goes to .data/e2e-*.log (kept for reading after a failure).
+  mkdirSync(path.join(root, ".data"), { recursive: true });
+  const logTo = (name: string) => openSync(path.join(root, ".data", `e2e-${name}.log`), "w");
   const app = spawn(process.execPath, [path.join(root, "node_modules/@react-router/serve/bin.js"), "./build/server/index.js"], {
     cwd: root,
     env,
-    stdio: ["ignore", "inherit", "inherit"],
+    stdio: ["ignore", logTo("app"), logTo("app")],
   });
   children.push(app);
   if (await import("node:fs").then((fs) => fs.existsSync(path.join(root, "app/worker.ts")))) {
-    children.push(spawn(process.execPath, ["--import", "tsx", "app/worker.ts"], { cwd: root, env, stdio: ["ignore", "inherit", "inherit"] }));
+    children.push(spawn(process.execPath, ["--import", "tsx", "app/worker.ts"], { cwd: root, env, stdio: ["ignore", logTo("worker"), logTo("worker")] }));
   }
   await waitFor(`${origin}/api/health`, 30_000);
   project.provide("baseURL", origin);
@@ -51,7 +55,17 @@ export default async function setup(project: TestProject) {
   project.provide("mailboxUrl", process.env.MAILBOX_URL!);
 
   return async () => {
-    for (const c of children) c.kill("SIGTERM");
+    await Promise.all(
+      children.map(
+        (c) =>
+          new Promise<void>((resolve) => {
+            if (c.exitCode !== null) return resolve();
+            c.once("exit", () => resolve());
+            c.kill("SIGTERM");
+            setTimeout(() => c.kill("SIGKILL"), 3000).unref();
+          }),
+      ),
+    );
   };
 }
 
