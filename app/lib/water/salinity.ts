@@ -239,8 +239,8 @@ export function conductivityFromSalinity(salinity: number, temperatureC: number,
 }
 
 // Continuity factors for the bulk path, every 0.1 °C over −2…35 °C (ITS-90), built on
-// first use. The factor changes by about 1e-5 per °C, so linear interpolation
-// reproduces hillRatioAtS2 to better than 1e-12.
+// first use. Quadratic interpolation between entries reproduces hillRatioAtS2 to about
+// 1e-12 (linear interpolation would leave 1e-9 near −2 °C).
 let hillRatioTable: Float64Array | null = null;
 const HILL_TABLE_START_C = -2;
 const HILL_TABLE_STEPS = 370;
@@ -283,11 +283,14 @@ export function practicalSalinityOrNaN(conductivityUsPerCm: number, temperatureC
     const bigX = 400 * x * x;
     const sy = 10 * x;
     const raw = s - A0 / (1 + bigX * (1.5 + bigX)) - (B0 * ft) / (1 + sy * (1 + sy * (1 + sy)));
+    // Quadratic interpolation on the nearest three entries.
     const pos = (t90 - HILL_TABLE_START_C) * 10;
-    let i = Math.floor(pos);
-    if (i >= HILL_TABLE_STEPS) i = HILL_TABLE_STEPS - 1;
-    const lo = hill[i];
-    s = (lo + (pos - i) * (hill[i + 1] - lo)) * raw;
+    let i = Math.round(pos);
+    if (i < 1) i = 1;
+    else if (i > HILL_TABLE_STEPS - 1) i = HILL_TABLE_STEPS - 1;
+    const u = pos - i;
+    const below = hill[i - 1], mid = hill[i], above = hill[i + 1];
+    s = (mid + 0.5 * u * (above - below) + 0.5 * u * u * (above - 2 * mid + below)) * raw;
   }
   return s <= 42 ? s : NaN;
 }
