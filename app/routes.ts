@@ -12,8 +12,23 @@ export default [
     index("routes/overview.tsx"),
     route("account", "routes/account.tsx"),
 
+    // Administration (admin role only).
+    ...prefix("admin", [
+      route("people", "routes/admin/people.tsx"),
+      route("people/:personId", "routes/admin/person.tsx"),
+      route("sites", "routes/admin/sites.tsx"),
+      route("sites/new", "routes/admin/site-new.tsx"),
+      route("sites/:siteId", "routes/admin/site.tsx"),
+      route("loggers", "routes/admin/loggers.tsx"),
+      route("loggers/new", "routes/admin/logger-new.tsx"),
+      route("loggers/:loggerId", "routes/admin/logger.tsx"),
+      route("outbox", "routes/admin/outbox.tsx"),
+    ]),
+
   ]),
 
   route("api/health", "routes/api/health.ts"),
+  route("api/uploads", "routes/api/uploads/index.ts"),
+  route("api/uploads/:uploadId/errors.csv", "routes/api/uploads/errors-csv.ts"),
   route("*", "routes/not-found.tsx"),
 ] satisfies RouteConfig;

@@ -5,8 +5,7 @@ import Papa from "papaparse";
 import type { PoolClient } from "pg";
 import { from as copyFrom } from "pg-copy-streams";
 import { sql } from "kysely";
-import { compileProfile, type ParsedRow } from "#app/lib/import/rows.ts";
-import { diagnoseMostlyFailing } from "#app/lib/import/rows.ts";
+import { compileProfile, createParsedRow, diagnoseMostlyFailing, isBlankRow, type RowError } from "#app/lib/import/rows.ts";
 import { importProfileSchema, type ImportProfile } from "#app/lib/import/profile.ts";
 import { db } from "#app/utils/db.server.ts";
 import { getObjectStream } from "#app/utils/storage.server.ts";
@@ -25,7 +24,7 @@ const EARLY_REJECT_SHARE = 0.8;
 /** At the end, a file where more than this share of rows failed is refused as a whole. */
 const FINAL_REJECT_SHARE = 0.5;
 
-export type RowError = { row: number; column: string; value: string; reason: string };
+export type { RowError };
 
 export type IngestResult = {
   rowsTotal: number;
@@ -84,7 +83,7 @@ export async function ingestObject(options: {
   if (options.sizeBytes === 0) throw new IngestProblem("The file is empty.");
   const parser = compileProfile(profile, { now: options.now ?? Date.now() });
   const deriver = new Deriver(options.settings, BATCH);
-  const out: ParsedRow = { timeMs: NaN, conductivityUsPerCm: NaN, specificConductanceUsPerCm: NaN, temperatureC: NaN, ph: NaN, depthM: NaN, batteryV: NaN };
+  const out = createParsedRow();
   const times = new Float64Array(BATCH);
   const rowNos = new Int32Array(BATCH);
   const ph = new Float64Array(BATCH);
@@ -177,7 +176,7 @@ export async function ingestObject(options: {
             const fields = rows[r];
             const lineNo = ++recordIndex; // 1-based record number in the file
             if (lineNo - 1 < profile.dataStartRow) continue;
-            if (fields.length === 1 && fields[0].trim() === "") continue; // blank line
+            if (isBlankRow(fields)) continue;
             dataRows++;
             if (sampleRows.length < 20) sampleRows.push(fields.slice(0, 50));
             if (!parser.parseRow(fields, lineNo, out)) {

@@ -4,6 +4,7 @@ import type { RouteConfigEntry } from "@react-router/dev/routes";
 import { db } from "#app/utils/db.server.ts";
 import { request, signIn, type Jar } from "../support/app.ts";
 import { createPeople, TEST_PASSWORD } from "../support/people.ts";
+import { createFixedRecords, FIXED } from "../support/fixed-records.ts";
 import type { RoleName } from "#db/schema.ts";
 
 // The authorisation table: every route in app/routes.ts × every role × signed out. Adding a route
@@ -26,7 +27,23 @@ export const AUTH_TABLE: Row[] = [
   { pattern: "reset-password/:token", path: "reset-password/not-a-real-token", public: true },
   { pattern: "/", get: ALL },
   { pattern: "account", get: ALL, post: ALL },
+  { pattern: "admin/people", get: ["admin"], post: ["admin"] },
+  { pattern: "admin/people/:personId", path: `admin/people/${FIXED.personId}`, get: ["admin"], post: ["admin"] },
+  { pattern: "admin/sites", get: ["admin"], post: ["admin"] },
+  { pattern: "admin/sites/new", get: ["admin"], post: ["admin"] },
+  { pattern: "admin/sites/:siteId", path: `admin/sites/${FIXED.siteId}`, get: ["admin"], post: ["admin"] },
+  { pattern: "admin/loggers", get: ["admin"], post: ["admin"] },
+  { pattern: "admin/loggers/new", get: ["admin"], post: ["admin"] },
+  { pattern: "admin/loggers/:loggerId", path: `admin/loggers/${FIXED.loggerId}`, get: ["admin"], post: ["admin"] },
+  { pattern: "admin/outbox", get: ["admin"], post: ["admin"] },
   { pattern: "api/health", public: true },
+  { pattern: "api/uploads", get: ["technician", "officer", "admin"], post: ["technician", "officer", "admin"], api: true },
+  {
+    pattern: "api/uploads/:uploadId/errors.csv",
+    path: "api/uploads/00000000-0000-4000-8000-000000000000/errors.csv",
+    api: true,
+    skip: "needs an upload; covered in ingest.test.ts (404 for an unknown id after the role check)",
+  },
   { pattern: "*", path: "no/such/page", public: true, skip: "catch-all answers 404 to everyone" },
 ];
 
@@ -45,6 +62,7 @@ let jars: Record<RoleName, Jar>;
 
 beforeAll(async () => {
   await createPeople(db);
+  await createFixedRecords(db);
   jars = Object.fromEntries(
     await Promise.all(ALL.map(async (r) => [r, await signIn(`${r}@test.example`, TEST_PASSWORD)] as const)),
   ) as Record<RoleName, Jar>;
