@@ -58,6 +58,7 @@ export const IONS = {
 export type IonName = keyof typeof IONS;
 export const ION_NAMES = Object.keys(IONS) as IonName[];
 
+/** The table row of an ion (CRC λ_eq, IUPAC molar mass, Kielland å); RangeError for unknown ions. */
 export function ionData(ion: IonName | string): IonData {
   if (!Object.hasOwn(IONS, ion)) throw new RangeError(`Unknown ion "${ion}"; known: ${ION_NAMES.join(", ")}`);
   return IONS[ion as IonName];

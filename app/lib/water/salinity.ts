@@ -23,6 +23,7 @@ const C0 = 0.6766097, C1 = 2.00564e-2, C2 = 1.104259e-4, C3 = -6.9698e-7, C4 = 1
 const D1 = 3.426e-2, D2 = 4.464e-4, D3 = 4.215e-1, D4 = -3.107e-3;
 const E1 = 2.07e-5, E2 = -6.37e-10, E3 = 3.989e-15;
 
+/** IPTS-68 temperature from ITS-90, t68 = 1.00024 t90 (Saunders 1990; the usual practice for PSS-78). */
 export function t68FromT90(t90: number): number {
   return 1.00024 * t90;
 }

@@ -63,7 +63,7 @@ describe("Hill et al. (1986) extension below S = 2", () => {
     expect(below).toBeCloseTo(2, 9);
   });
 
-  test("fresh water gets a small positive salinity that rises with conductivity (common practice: S ≈ 0.0005 × SC25 in µS/cm)", () => {
+  test("fresh water gets a small positive salinity that rises with conductivity (rule of thumb S ≈ 0.0005 × SC25 in µS/cm; from memory)", () => {
     const s = practicalSalinity(0.5, 10); // 500 µS/cm in situ at 10 °C, SC25 ≈ 700 µS/cm
     expect(s).toBeGreaterThan(0.25);
     expect(s).toBeLessThan(0.45);
