@@ -11,6 +11,7 @@ import { db } from "#app/utils/db.server.ts";
 import { getObjectStream } from "#app/utils/storage.server.ts";
 import { currentSettingsId } from "#app/models/derivation.server.ts";
 import { Deriver } from "./derive.server.ts";
+import { BinaryRowWriter, copyHeader, copyTrailer } from "./pg-binary-copy.ts";
 import { withClient } from "./pg-client.server.ts";
 
 /** A problem with the file or its profile: shown to the person, never retried. */
@@ -38,9 +39,6 @@ export type IngestResult = {
 
 type Progress = (p: { rows: number; bytes: number }) => void;
 
-function fmt(x: number) {
-  return x === x ? String(x) : "\\N";
-}
 
 /** Counts and hashes the raw bytes, and refuses binary data (NUL bytes) early. */
 function inspectBytes(hash: ReturnType<typeof createHash>, onBytes: (n: number) => void) {
@@ -74,7 +72,8 @@ export async function ingestObject(options: {
   upload: { id: string; siteId: string; loggerId: string };
   profile: ImportProfile;
   settings: { id: number; compensation_method: "linear" | "natural-water"; alpha_per_c: number; reference_c: number; tds_factor: number };
-  replaceOwnReadings: boolean;
+  /** Delete this upload's earlier readings first (re-processing); the range they covered, if known. */
+  replaceOwnReadings: false | { from: Date | null; to: Date | null };
   now?: number;
   onProgress?: Progress;
   body?: Readable;
@@ -112,7 +111,9 @@ export async function ingestObject(options: {
       temperature double precision, ph double precision, depth double precision, battery double precision,
       sc25 double precision, tds double precision, salinity double precision
     ) on commit drop`);
-  const copy = client.query(copyFrom("copy stage from stdin"));
+  const copy = client.query(copyFrom("copy stage from stdin with (format binary)"));
+  copy.write(copyHeader());
+  const writer = new BinaryRowWriter(BATCH, 10);
 
   function reject(list: RowError[]) {
     rejected++;
@@ -125,15 +126,22 @@ export async function ingestObject(options: {
   function flush(): boolean {
     if (n === 0) return true;
     deriver.run(n);
-    let text = "";
     for (let i = 0; i < n; i++) {
-      text +=
-        times[i] + "\t" + rowNos[i] + "\t" + fmt(deriver.cond[i]) + "\t" + fmt(deriver.loggerSc[i]) + "\t" +
-        fmt(deriver.temp[i]) + "\t" + fmt(ph[i]) + "\t" + fmt(depth[i]) + "\t" + fmt(battery[i]) + "\t" +
-        fmt(deriver.sc25[i]) + "\t" + fmt(deriver.tds[i]) + "\t" + fmt(deriver.salinity[i]) + "\n";
+      writer.begin(11);
+      writer.float(times[i]);
+      writer.int(rowNos[i]);
+      writer.float(deriver.cond[i]);
+      writer.float(deriver.loggerSc[i]);
+      writer.float(deriver.temp[i]);
+      writer.float(ph[i]);
+      writer.float(depth[i]);
+      writer.float(battery[i]);
+      writer.float(deriver.sc25[i]);
+      writer.float(deriver.tds[i]);
+      writer.float(deriver.salinity[i]);
     }
     n = 0;
-    return copy.write(text);
+    return copy.write(writer.take(BATCH));
   }
 
   function earlyCheck() {
@@ -233,7 +241,7 @@ export async function ingestObject(options: {
   await feeding.catch(() => {});
   if (feedError) throw feedError;
   flush();
-  copy.end();
+  copy.end(copyTrailer());
   await new Promise<void>((resolve, reject_) => {
     copy.once("finish", resolve);
     copy.once("error", reject_);
@@ -269,8 +277,14 @@ export async function ingestObject(options: {
   }
 
   await client.query("select ensure_reading_partitions(to_timestamp($1 / 1000.0), to_timestamp($2 / 1000.0))", [firstMs, lastMs]);
-  if (options.replaceOwnReadings) {
-    await client.query("delete from readings where site_id = $1 and upload_id = $2", [upload.siteId, upload.id]);
+  if (options.replaceOwnReadings && options.replaceOwnReadings.from && options.replaceOwnReadings.to) {
+    // Through the primary key (site_id, time, …): only this upload's rows in the range it covered.
+    await client.query("delete from readings where site_id = $1 and time between $2 and $3 and upload_id = $4", [
+      upload.siteId,
+      options.replaceOwnReadings.from,
+      options.replaceOwnReadings.to,
+      upload.id,
+    ]);
   }
   const inserted = await client.query(
     `insert into readings (site_id, logger_id, time, upload_id, row_number, conductivity_us_cm, logger_sc_us_cm,
@@ -320,7 +334,8 @@ export async function runIngestJob(uploadId: string, attempt = 1) {
     .leftJoin("import_profile", "import_profile.id", "upload.profile_id")
     .select([
       "upload.id", "upload.object_key", "upload.file_name", "upload.size_bytes", "upload.site_id", "upload.logger_id",
-      "upload.status", "upload.sha256", "upload.finished_at", "import_profile.settings as profile",
+      "upload.status", "upload.sha256", "upload.finished_at", "upload.first_reading_at", "upload.last_reading_at",
+      "import_profile.settings as profile",
     ])
     .where("upload.id", "=", uploadId)
     .executeTakeFirst();
@@ -338,7 +353,7 @@ export async function runIngestJob(uploadId: string, attempt = 1) {
       await client.query("begin");
       await storeErrors(client, uploadId, errors.slice(0, 50));
       await client.query(
-        "update upload set status = 'failed', message = $2, finished_at = now(), rows_accepted = 0, rows_duplicate = 0 where id = $1",
+        "update upload set status = 'failed', message = $2, finished_at = now() where id = $1",
         [uploadId, message],
       );
       await client.query("commit");
@@ -373,7 +388,7 @@ export async function runIngestJob(uploadId: string, attempt = 1) {
           upload: { id: upload.id, siteId: upload.site_id, loggerId: upload.logger_id },
           profile: parsedProfile.data,
           settings,
-          replaceOwnReadings: true,
+          replaceOwnReadings: { from: upload.first_reading_at, to: upload.last_reading_at },
           onProgress,
         });
         if (result.sha256 !== upload.sha256) {

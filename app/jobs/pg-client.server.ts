@@ -6,7 +6,8 @@ const globalForPool = globalThis as unknown as { __ripplemarkRawPool?: pg.Pool }
 
 export function rawPool() {
   if (!globalForPool.__ripplemarkRawPool) {
-    const pool = new pg.Pool({ connectionString: getEnv().DATABASE_URL, max: 4 });
+    // Jobs stage whole files in temporary tables: give them room in memory before spilling to disk.
+    const pool = new pg.Pool({ connectionString: getEnv().DATABASE_URL, max: 4, options: "-c temp_buffers=256MB" });
     pool.on("error", (err) => console.error("[db] idle raw client error:", err.message));
     globalForPool.__ripplemarkRawPool = pool;
   }

@@ -125,7 +125,6 @@ psql(
    alter table copy_target alter column site_id set default '${site.id}', alter column logger_id set default '${logger.id}',
      alter column upload_id set default '${uploadId}', alter column row_number set default 0;
    alter table copy_target add primary key (site_id, time, logger_id);
-   create index on copy_target (upload_id);
    create table copy_target_all partition of copy_target for values from ('1990-01-01') to ('2100-01-01');`,
 );
 const c0 = performance.now();
