@@ -109,7 +109,7 @@ export interface AuditEventTable {
   reason: string | null;
 }
 
-export interface DB extends IngestTables {
+export interface DB extends IngestTables, LabTables {
   role: RoleTable;
   person: PersonTable;
   session: SessionTable;
@@ -214,4 +214,35 @@ export interface IngestTables {
   upload: UploadTable;
   upload_error: UploadErrorTable;
   readings: ReadingsTable;
+}
+
+// ---- lab samples (0003) ----
+export type LabVerdict = "pass" | "warn" | "fail";
+
+export interface LabSampleTable {
+  id: Generated<string>;
+  site_id: string;
+  sampled_at: Timestamp;
+  lab_reference: string | null;
+  /** Ion name (as in app/lib/water/ions.ts) → mg/L, only the ions the laboratory reported. */
+  ions_mg_l: ColumnType<Record<string, number>, string, string>;
+  measured_ec_us_cm: number | null;
+  measured_tds_mg_l: number | null;
+  ph: number | null;
+  silica_mg_l: number | null;
+  notes: Generated<string>;
+  calculated_ec_us_cm: number;
+  calculated_tds_mg_l: number;
+  ec_ratio: number | null;
+  ion_balance_percent: number;
+  /** The labCheck() output when the sample was entered or last edited. */
+  results: ColumnType<unknown, string, string>;
+  verdict: LabVerdict;
+  entered_by: string | null;
+  created_at: CreatedAt;
+  updated_at: UpdatedAt;
+}
+
+export interface LabTables {
+  lab_sample: LabSampleTable;
 }

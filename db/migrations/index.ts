@@ -1,10 +1,12 @@
 import type { Migration } from "kysely";
 import * as m0001 from "./0001_foundation.ts";
 import * as m0002 from "./0002_ingest.ts";
+import * as m0003 from "./0003_lab_samples.ts";
 
 // Every migration, in order. Add a new file here when you add one to this folder (a test checks
 // that the folder and this list agree).
 export const migrations: Record<string, Migration> = {
   "0001_foundation": m0001,
   "0002_ingest": m0002,
+  "0003_lab_samples": m0003,
 };
