@@ -100,7 +100,7 @@ export function DataTable<Row>({ columns, rows, rowKey, table, caption, captionD
                   {columns.map((c) => {
                     const cls = `${c.numeric ? "text-right tabular-nums" : ""} ${c.className ?? ""}`;
                     return c.rowHeader ? (
-                      <th key={c.key} scope="row" className={`font-normal ${cls}`}>{c.render(row)}</th>
+                      <th key={c.key} scope="row" className={`border-b border-ink-100 font-normal ${cls}`}>{c.render(row)}</th>
                     ) : (
                       <td key={c.key} className={cls}>{c.render(row)}</td>
                     );

@@ -160,7 +160,7 @@ export default function Logger({ loaderData, actionData }: Route.ComponentProps)
             <tbody>
               {deployments.map((d) => (
                 <tr key={d.id}>
-                  <th scope="row" className="font-normal">{d.site}</th>
+                  <th scope="row" className="border-b border-ink-100 font-normal">{d.site}</th>
                   <td>{d.from}</td>
                   <td>{d.until ?? <span className="font-semibold">still there</span>}</td>
                 </tr>

@@ -109,7 +109,10 @@ export default function People({ loaderData, actionData }: Route.ComponentProps)
     .join(", ");
   return (
     <div className="space-y-6">
-      <h1>People</h1>
+      <div className="flex flex-wrap items-center justify-between gap-3">
+        <h1>People</h1>
+        <a href="#invite-title" className="btn">Invite someone</a>
+      </div>
       <section aria-labelledby="people-list" className="space-y-3">
         <h2 id="people-list" className="sr-only">Everyone with an account</h2>
         <FilterForm label="Filter people" clearTo="/admin/people" keep={{ sort: table.sort, dir: table.dir, size: table.pageSize }}>
@@ -146,7 +149,7 @@ export default function People({ loaderData, actionData }: Route.ComponentProps)
           empty={filter.q || filter.role || filter.status ? "Nobody matches these filters." : "Nobody has an account yet."}
         />
       </section>
-      <section className="card max-w-2xl" aria-labelledby="invite-title">
+      <section className="card max-w-2xl scroll-mt-4" aria-labelledby="invite-title">
         <h2 id="invite-title">Invite someone</h2>
         <p className="mt-1 text-ink-700">
           They get an e-mail with a link to choose their password. Until then their status is “Invitation pending”.
