@@ -5,9 +5,25 @@ import { fileURLToPath } from "node:url";
 import { createDb } from "./connect.ts";
 import type { DB } from "./schema.ts";
 import { DEMO_ASSIGNMENTS, DEMO_LOGGERS, DEMO_PEOPLE, DEMO_SITES } from "./demo/scenario.ts";
+import { demoEvents } from "./demo/readings.ts";
+import { seedDemoReadings } from "./demo/seed-readings.ts";
 import { hashPassword } from "#app/utils/password.server.ts";
 
-export async function seedDemo(db: Kysely<DB>) {
+export type SeedOptions = {
+  /** Days of demo readings before `endMs` (default a year); 0 loads none. */
+  readingsDays?: number;
+  endMs?: number;
+  log?: (line: string) => void;
+};
+
+function todayUtcMs() {
+  const now = new Date();
+  return Date.UTC(now.getUTCFullYear(), now.getUTCMonth(), now.getUTCDate());
+}
+
+export async function seedDemo(db: Kysely<DB>, options: SeedOptions = {}) {
+  const endMs = options.endMs ?? todayUtcMs();
+  const swapMs = demoEvents(endMs).swap;
   const hashes = await Promise.all(DEMO_PEOPLE.map((p) => hashPassword(p.password)));
   await db.transaction().execute(async (trx) => {
     for (const [i, p] of DEMO_PEOPLE.entries()) {
@@ -50,17 +66,19 @@ export async function seedDemo(db: Kysely<DB>) {
         .executeTakeFirstOrThrow();
       const siteId = l.site ? siteIds.get(l.site) : undefined;
       if (!siteId) continue;
+      // The AB8 swap is dated by the demo year: the old logger leaves, the new one arrives.
+      const from = l.swap === "replacement" ? new Date(swapMs) : new Date(l.from);
+      const until = l.swap === "replaced" ? new Date(swapMs - 5 * 60_000) : null;
       const have = await trx
         .selectFrom("logger_deployment")
         .select("id")
         .where("logger_id", "=", logger.id)
         .where("site_id", "=", siteId)
-        .where("deployed_from", "=", new Date(l.from))
         .executeTakeFirst();
       if (!have) {
         await trx
           .insertInto("logger_deployment")
-          .values({ logger_id: logger.id, site_id: siteId, deployed_from: new Date(l.from), deployed_until: l.until ? new Date(l.until) : null })
+          .values({ logger_id: logger.id, site_id: siteId, deployed_from: from, deployed_until: until })
           .execute();
       }
     }
@@ -75,6 +93,9 @@ export async function seedDemo(db: Kysely<DB>) {
       }
     }
   });
+  if ((options.readingsDays ?? 365) > 0) {
+    await seedDemoReadings(db, { days: options.readingsDays ?? 365, endMs, log: options.log });
+  }
 }
 
 if (process.argv[1] === fileURLToPath(import.meta.url)) {
@@ -82,9 +103,11 @@ if (process.argv[1] === fileURLToPath(import.meta.url)) {
   if (!url) throw new Error("DATABASE_URL is not set");
   const db = createDb(url, 2);
   try {
-    await seedDemo(db);
+    await seedDemo(db, { readingsDays: Number(process.env.DEMO_DAYS ?? 365), log: (l) => console.log(l) });
     console.log(`demo seeded: ${DEMO_SITES.length} sites, ${DEMO_LOGGERS.length} loggers, ${DEMO_PEOPLE.length} people`);
   } finally {
     await db.destroy();
   }
+  // The ingest code keeps its own pools open; the seed is done.
+  process.exit(0);
 }

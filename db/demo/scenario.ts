@@ -34,19 +34,20 @@ export const DEMO_SITES: DemoSite[] = [
   { code: "AB8", name: "Ashcombe borehole 2", kind: "borehole", latitude: 54.334, longitude: -2.815, notes: "Conductivity rising slowly since the new abstraction licence; watch the trend.", compensationMethod: "linear", referenceC: 25, tdsFactor: 0.68 },
 ];
 
-export type DemoLogger = { serial: string; model: string; intervalS: number; site: string | null; from: string; until?: string };
+/** `swap`: the AB8 logger swap, dated by the demo year's events (db/demo/readings.ts). */
+export type DemoLogger = { serial: string; model: string; intervalS: number; site: string | null; from: string; swap?: "replaced" | "replacement" };
 
 export const DEMO_LOGGERS: DemoLogger[] = [
-  { serial: "RQ-4101", model: "Four-electrode conductivity/temperature logger", intervalS: 900, site: "QH1", from: "2025-01-06T10:00:00Z" },
-  { serial: "RQ-4102", model: "Four-electrode conductivity/temperature logger", intervalS: 900, site: "QF2", from: "2025-01-06T11:30:00Z" },
-  { serial: "RQ-4103", model: "Four-electrode conductivity/temperature logger", intervalS: 600, site: "QT3", from: "2025-01-06T12:15:00Z" },
-  { serial: "RQ-5201", model: "Conductivity/temperature/depth logger, titanium housing", intervalS: 900, site: "QS4", from: "2025-01-07T09:00:00Z" },
-  { serial: "RQ-4105", model: "Multiparameter sonde (conductivity, temperature, pH)", intervalS: 900, site: "HR5", from: "2025-01-07T13:00:00Z" },
-  { serial: "RQ-4106", model: "Multiparameter sonde (conductivity, temperature, pH)", intervalS: 60, site: "BW6", from: "2025-01-08T08:30:00Z" },
-  { serial: "RQ-3107", model: "Well logger (conductivity, temperature, level)", intervalS: 900, site: "AB7", from: "2025-01-08T10:00:00Z" },
+  { serial: "RQ-4101", model: "Four-electrode conductivity/temperature logger", intervalS: 900, site: "QH1", from: "2024-11-06T10:00:00Z" },
+  { serial: "RQ-4102", model: "Four-electrode conductivity/temperature logger", intervalS: 900, site: "QF2", from: "2024-11-06T11:30:00Z" },
+  { serial: "RQ-4103", model: "Four-electrode conductivity/temperature logger", intervalS: 600, site: "QT3", from: "2024-11-06T12:15:00Z" },
+  { serial: "RQ-5201", model: "Conductivity/temperature/depth logger, titanium housing", intervalS: 900, site: "QS4", from: "2024-11-07T09:00:00Z" },
+  { serial: "RQ-4105", model: "Multiparameter sonde (conductivity, temperature, pH)", intervalS: 900, site: "HR5", from: "2024-11-07T13:00:00Z" },
+  { serial: "RQ-4106", model: "Multiparameter sonde (conductivity, temperature, pH)", intervalS: 60, site: "BW6", from: "2024-11-08T08:30:00Z" },
+  { serial: "RQ-3107", model: "Well logger (conductivity, temperature, level)", intervalS: 900, site: "AB7", from: "2024-11-08T10:00:00Z" },
   // The logger swap at AB8: RQ-3108 failed in June and was replaced by RQ-3109.
-  { serial: "RQ-3108", model: "Well logger (conductivity, temperature, level)", intervalS: 900, site: "AB8", from: "2025-01-08T11:00:00Z", until: "2025-06-17T10:40:00Z" },
-  { serial: "RQ-3109", model: "Well logger (conductivity, temperature, level)", intervalS: 900, site: "AB8", from: "2025-06-17T10:45:00Z" },
+  { serial: "RQ-3108", model: "Well logger (conductivity, temperature, level)", intervalS: 900, site: "AB8", from: "2024-11-08T11:00:00Z", swap: "replaced" },
+  { serial: "RQ-3109", model: "Well logger (conductivity, temperature, level)", intervalS: 900, site: "AB8", from: "2024-11-08T11:00:00Z", swap: "replacement" },
 ];
 
 /** The technician's round: the sites Tamsin visits. */

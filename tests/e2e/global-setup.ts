@@ -33,7 +33,8 @@ export default async function setup(project: TestProject) {
   applyTestEnv(name);
   process.env.NODE_ENV = "production";
   const db = createDb(databaseUrl(name), 2);
-  await seedDemo(db);
+  // A month of demo readings keeps the set-up quick while every page has data to show.
+  await seedDemo(db, { readingsDays: 30 });
   await db.destroy();
 
   const env = { ...process.env, PORT: String(port), HOST: "127.0.0.1" };
