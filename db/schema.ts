@@ -109,7 +109,7 @@ export interface AuditEventTable {
   reason: string | null;
 }
 
-export interface DB extends IngestTables, LabTables {
+export interface DB extends IngestTables, LabTables, ThresholdTables {
   role: RoleTable;
   person: PersonTable;
   session: SessionTable;
@@ -245,4 +245,20 @@ export interface LabSampleTable {
 
 export interface LabTables {
   lab_sample: LabSampleTable;
+}
+
+// ---- site display thresholds (0004) ----
+export type ThresholdParameterName = "sc25" | "temperature" | "tds" | "salinity" | "ph" | "depth";
+
+export interface SiteThresholdTable {
+  site_id: string;
+  parameter: ThresholdParameterName;
+  bound: "upper" | "lower";
+  value: number;
+  updated_at: UpdatedAt;
+  updated_by: string | null;
+}
+
+export interface ThresholdTables {
+  site_threshold: SiteThresholdTable;
 }
