@@ -4,7 +4,6 @@ import { PassThrough, Transform, type Readable } from "node:stream";
 import { pipeline } from "node:stream/promises";
 import Papa from "papaparse";
 import type { PoolClient } from "pg";
-import { from as copyFrom } from "pg-copy-streams";
 import { sql } from "kysely";
 import { compileProfile, createParsedRow, diagnoseMostlyFailing, isBlankRow, type RowError } from "#app/lib/import/rows.ts";
 import { importProfileSchema, type ImportProfile } from "#app/lib/import/profile.ts";
@@ -12,7 +11,7 @@ import { db } from "#app/utils/db.server.ts";
 import { getObjectStream } from "#app/utils/storage.server.ts";
 import { currentSettingsId } from "#app/models/derivation.server.ts";
 import { Deriver } from "./derive.server.ts";
-import { BinaryRowWriter, copyHeader, copyTrailer } from "./pg-binary-copy.ts";
+import { ReadingSink, type RowBatch } from "./reading-sink.server.ts";
 import { withClient } from "./pg-client.server.ts";
 
 /** A problem with the file or its profile: shown to the person, never retried. */
@@ -63,7 +62,8 @@ function inspectBytes(hash: ReturnType<typeof createHash>, onBytes: (n: number) 
 
 /**
  * Streams one upload from S3 into the readings store. Everything it writes happens in one
- * transaction on `client`: a failure (or a killed process) leaves no partial rows.
+ * transaction on `client` (the caller begins and commits it): a failure, or a killed process,
+ * leaves no partial rows.
  */
 export async function ingestObject(options: {
   client: PoolClient;
@@ -84,21 +84,27 @@ export async function ingestObject(options: {
   const parser = compileProfile(profile, { now: options.now ?? Date.now() });
   const deriver = new Deriver(options.settings, BATCH);
   const out = createParsedRow();
-  const times = new Float64Array(BATCH);
-  const rowNos = new Int32Array(BATCH);
-  const ph = new Float64Array(BATCH);
-  const depth = new Float64Array(BATCH);
-  const battery = new Float64Array(BATCH);
-  let n = 0;
+  const batch: RowBatch = {
+    n: 0,
+    timeMs: new Float64Array(BATCH),
+    rowNumber: new Int32Array(BATCH),
+    conductivity: deriver.cond,
+    loggerSc: deriver.loggerSc,
+    temperature: deriver.temp,
+    ph: new Float64Array(BATCH),
+    depth: new Float64Array(BATCH),
+    battery: new Float64Array(BATCH),
+    sc25: deriver.sc25,
+    tds: deriver.tds,
+    salinity: deriver.salinity,
+  };
 
   const errors: RowError[] = [];
   let moreErrors = 0;
   let dataRows = 0;
   let accepted = 0;
   let rejected = 0;
-  let inFileDuplicates = 0;
   let lastTime = -Infinity;
-  let nonMonotonic = false;
   let firstMs = Infinity;
   let lastMs = -Infinity;
   let recordIndex = 0;
@@ -113,15 +119,31 @@ export async function ingestObject(options: {
     timings[name] = Math.round(now - mark);
     mark = now;
   };
-  const hash = createHash("sha256");
-  await client.query(`create temp table stage (
-      time_ms double precision, row_number integer, conductivity double precision, logger_sc double precision,
-      temperature double precision, ph double precision, depth double precision, battery double precision,
-      sc25 double precision, tds double precision, salinity double precision
-    ) on commit drop`);
-  const copy = client.query(copyFrom("copy stage from stdin with (format binary)"));
-  copy.write(copyHeader());
-  const writer = new BinaryRowWriter(BATCH, 10);
+
+  // Serialise loads of the same logger (overlapping dumps uploaded at once), make sure every
+  // partition a valid timestamp can fall in exists, and read the watermark for routing rows.
+  await client.query("select pg_advisory_xact_lock(hashtext($1))", [`readings:${upload.loggerId}`]);
+  await client.query("select ensure_reading_partitions('1980-01-01'::timestamptz, now() + interval '1 year')");
+  if (options.replaceOwnReadings && options.replaceOwnReadings.from && options.replaceOwnReadings.to) {
+    // Through the primary key (site_id, time, …): only this upload's rows in the range it covered.
+    await client.query("delete from readings where site_id = $1 and time between $2 and $3 and upload_id = $4", [
+      upload.siteId,
+      options.replaceOwnReadings.from,
+      options.replaceOwnReadings.to,
+      upload.id,
+    ]);
+  }
+  const wm = await client.query<{ t: Date | null }>(
+    "select max(time) as t from readings where site_id = $1 and logger_id = $2",
+    [upload.siteId, upload.loggerId],
+  );
+  const sink = new ReadingSink(
+    client,
+    { siteId: upload.siteId, loggerId: upload.loggerId, uploadId: upload.id },
+    options.settings.id,
+    wm.rows[0].t ? wm.rows[0].t.getTime() : -Infinity,
+  );
+  lap("prepare");
 
   function reject(list: RowError[]) {
     rejected++;
@@ -131,33 +153,21 @@ export async function ingestObject(options: {
     }
   }
 
-  function flush(): boolean {
-    if (n === 0) return true;
-    deriver.run(n);
-    for (let i = 0; i < n; i++) {
-      writer.begin(11);
-      writer.float(times[i]);
-      writer.int(rowNos[i]);
-      writer.float(deriver.cond[i]);
-      writer.float(deriver.loggerSc[i]);
-      writer.float(deriver.temp[i]);
-      writer.float(ph[i]);
-      writer.float(depth[i]);
-      writer.float(battery[i]);
-      writer.float(deriver.sc25[i]);
-      writer.float(deriver.tds[i]);
-      writer.float(deriver.salinity[i]);
-    }
-    n = 0;
-    return copy.write(writer.take(BATCH));
-  }
-
   function earlyCheck() {
     if (dataRows === EARLY_ROWS && rejected / dataRows >= EARLY_REJECT_SHARE) {
       throw new IngestProblem(diagnoseMostlyFailing(errors, profile, sampleRows));
     }
   }
 
+  /** Derives the batch's values and hands it to the sink. */
+  async function flush() {
+    if (batch.n === 0) return;
+    deriver.run(batch.n);
+    await sink.write(batch);
+    batch.n = 0;
+  }
+
+  const hash = createHash("sha256");
   const decoded = new PassThrough({ decodeStrings: false });
   decoded.setEncoding("utf8");
   const body = options.body ?? (await getObjectStream(options.objectKey));
@@ -174,8 +184,51 @@ export async function ingestObject(options: {
     feedError = e;
   });
 
+  /** One chunk of parsed records: validate, batch, and hand full batches to the sink. */
+  async function processRows(rows: string[][]) {
+    for (let r = 0; r < rows.length; r++) {
+      const fields = rows[r];
+      const lineNo = ++recordIndex; // 1-based record number in the file
+      if (lineNo - 1 < profile.dataStartRow) continue;
+      if (isBlankRow(fields)) continue;
+      dataRows++;
+      if (sampleRows.length < 20) sampleRows.push(fields.slice(0, 50));
+      if (!parser.parseRow(fields, lineNo, out)) {
+        reject(parser.lastErrors);
+        earlyCheck();
+        continue;
+      }
+      const t = out.timeMs;
+      if (t === lastTime) {
+        reject([{ row: lineNo, column: "(timestamp)", value: new Date(t).toISOString(), reason: "the same timestamp appears on the row before; the first one is kept" }]);
+        continue;
+      }
+      lastTime = t;
+      if (t < firstMs) firstMs = t;
+      if (t > lastMs) lastMs = t;
+      const i = batch.n++;
+      batch.timeMs[i] = t;
+      batch.rowNumber[i] = lineNo;
+      batch.conductivity[i] = out.conductivityUsPerCm;
+      batch.loggerSc[i] = out.specificConductanceUsPerCm;
+      batch.temperature[i] = out.temperatureC;
+      batch.ph[i] = out.ph;
+      batch.depth[i] = out.depthM;
+      batch.battery[i] = out.batteryV;
+      accepted++;
+      earlyCheck();
+      if (batch.n === BATCH) await flush();
+    }
+    const now = Date.now();
+    if (options.onProgress && now - lastProgress > 250) {
+      lastProgress = now;
+      options.onProgress({ rows: dataRows, bytes });
+    }
+  }
+
   await new Promise<void>((resolve, reject_) => {
     let failed = false;
+    let pending: Promise<void> = Promise.resolve();
     const fail = (e: unknown) => {
       if (failed) return;
       failed = true;
@@ -186,60 +239,22 @@ export async function ingestObject(options: {
       delimiter: profile.delimiter,
       skipEmptyLines: false,
       chunk(results, p) {
-        try {
-          const rows = results.data as string[][];
-          for (let r = 0; r < rows.length; r++) {
-            const fields = rows[r];
-            const lineNo = ++recordIndex; // 1-based record number in the file
-            if (lineNo - 1 < profile.dataStartRow) continue;
-            if (isBlankRow(fields)) continue;
-            dataRows++;
-            if (sampleRows.length < 20) sampleRows.push(fields.slice(0, 50));
-            if (!parser.parseRow(fields, lineNo, out)) {
-              reject(parser.lastErrors);
-              earlyCheck();
-              continue;
-            }
-            const t = out.timeMs;
-            if (t <= lastTime) {
-              if (t === lastTime) {
-                inFileDuplicates++;
-                reject([{ row: lineNo, column: "(timestamp)", value: new Date(t).toISOString(), reason: "the same timestamp appears on the row before; the first one is kept" }]);
-                continue;
-              }
-              nonMonotonic = true;
-            }
-            lastTime = t;
-            if (t < firstMs) firstMs = t;
-            if (t > lastMs) lastMs = t;
-            times[n] = t;
-            rowNos[n] = lineNo;
-            deriver.cond[n] = out.conductivityUsPerCm;
-            deriver.loggerSc[n] = out.specificConductanceUsPerCm;
-            deriver.temp[n] = out.temperatureC;
-            ph[n] = out.ph;
-            depth[n] = out.depthM;
-            battery[n] = out.batteryV;
-            n++;
-            accepted++;
-            if (n === BATCH && !flush()) {
-              p.pause();
-              copy.once("drain", () => p.resume());
-            }
-            earlyCheck();
-          }
-          const now = Date.now();
-          if (options.onProgress && now - lastProgress > 250) {
-            lastProgress = now;
-            options.onProgress({ rows: dataRows, bytes });
-          }
-        } catch (e) {
-          p.abort();
-          fail(e);
-        }
+        // Pause while this chunk is processed (its full batches wait for COPY back-pressure).
+        p.pause();
+        pending = pending.then(() => processRows(results.data as string[][])).then(
+          () => {
+            if (!failed) p.resume();
+          },
+          (e) => {
+            p.abort();
+            fail(e);
+          },
+        );
       },
       complete() {
-        if (!failed) resolve();
+        pending.then(() => {
+          if (!failed) resolve();
+        }, fail);
       },
       error(err: Error) {
         fail(new IngestProblem(`The file could not be read as CSV: ${err.message}`));
@@ -248,12 +263,7 @@ export async function ingestObject(options: {
   });
   await feeding.catch(() => {});
   if (feedError) throw feedError;
-  flush();
-  copy.end(copyTrailer());
-  await new Promise<void>((resolve, reject_) => {
-    copy.once("finish", resolve);
-    copy.once("error", reject_);
-  });
+  await flush();
   options.onProgress?.({ rows: dataRows, bytes });
   lap("stream+parse+copy");
 
@@ -268,60 +278,17 @@ export async function ingestObject(options: {
     throw new IngestProblem(diagnoseMostlyFailing(errors, profile, sampleRows));
   }
 
-  // Timestamps out of order: keep the first row of each timestamp, report the others.
-  if (nonMonotonic) {
-    const dups = await client.query<{ row_number: number; time_ms: number; first_row: number }>(`
-      with ranked as (
-        select ctid, row_number, time_ms, first_value(row_number) over (partition by time_ms order by row_number) as first_row
-        from stage
-      )
-      delete from stage s using ranked r
-      where s.ctid = r.ctid and r.row_number <> r.first_row
-      returning r.row_number, r.time_ms, r.first_row`);
-    for (const d of dups.rows) {
-      inFileDuplicates++;
-      accepted--;
-      reject([{ row: d.row_number, column: "(timestamp)", value: new Date(d.time_ms).toISOString(), reason: `the same timestamp appears earlier in this file (row ${d.first_row}); the first one is kept` }]);
-    }
-  }
-
-  lap("dedupe");
-  await client.query("select ensure_reading_partitions(to_timestamp($1 / 1000.0), to_timestamp($2 / 1000.0))", [firstMs, lastMs]);
-  if (options.replaceOwnReadings && options.replaceOwnReadings.from && options.replaceOwnReadings.to) {
-    // Through the primary key (site_id, time, …): only this upload's rows in the range it covered.
-    await client.query("delete from readings where site_id = $1 and time between $2 and $3 and upload_id = $4", [
-      upload.siteId,
-      options.replaceOwnReadings.from,
-      options.replaceOwnReadings.to,
-      upload.id,
-    ]);
-  }
-  // Merges of the same logger are serialised (concurrent uploads of overlapping dumps), so the
-  // overlap check below stays true until commit. Without overlap a plain INSERT is used: about twice
-  // as fast as INSERT … ON CONFLICT, which is kept for dumps that overlap stored readings.
-  await client.query("select pg_advisory_xact_lock(hashtext($1))", [`readings:${upload.loggerId}`]);
-  const overlap = await client.query(
-    `select exists (select 1 from readings where site_id = $1 and time between to_timestamp($3 / 1000.0) and to_timestamp($4 / 1000.0)
-       and logger_id = $2) as overlap`,
-    [upload.siteId, upload.loggerId, firstMs, lastMs],
-  );
-  const inserted = await client.query(
-    `insert into readings (site_id, logger_id, time, upload_id, row_number, conductivity_us_cm, logger_sc_us_cm,
-        temperature_c, ph, depth_m, battery_v, sc25_us_cm, tds_mg_l, salinity_psu, settings_id)
-     select $1, $2, to_timestamp(time_ms / 1000.0), $3, row_number, conductivity, logger_sc, temperature, ph, depth, battery,
-        sc25, tds, salinity, $4
-     from stage
-     ${overlap.rows[0].overlap ? "on conflict (site_id, time, logger_id) do nothing" : ""}`,
-    [upload.siteId, upload.loggerId, upload.id, options.settings.id],
-  );
-  const insertedRows = inserted.rowCount ?? 0;
+  await sink.finish();
   lap("merge");
+  for (const d of sink.sameFileRepeats) {
+    reject([{ row: d.row, column: "(timestamp)", value: new Date(d.timeMs).toISOString(), reason: `the same timestamp appears earlier in this file (row ${d.firstRow}); the first one is kept` }]);
+  }
   errors.sort((a, b) => a.row - b.row);
   return {
     rowsTotal: dataRows,
-    accepted: insertedRows,
+    accepted: sink.inserted,
     rejected,
-    duplicates: accepted - insertedRows,
+    duplicates: sink.skipped,
     firstMs: Number.isFinite(firstMs) ? firstMs : null,
     lastMs: Number.isFinite(lastMs) ? lastMs : null,
     sha256: hash.digest("hex"),

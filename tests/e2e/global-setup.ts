@@ -4,7 +4,7 @@ import path from "node:path";
 import type { TestProject } from "vitest/node";
 import { createDb } from "#db/connect.ts";
 import { seedDemo } from "#db/seed.ts";
-import { createTestDatabase, dropTestDatabases, prepareTemplate } from "../support/databases.ts";
+import { createTestDatabase, dropRunDatabases, dropStaleDatabases, newRunId, prepareTemplate } from "../support/databases.ts";
 import { applyTestEnv, databaseUrl } from "../support/env.ts";
 
 // Browser tests run against the production build served on its own port, with a fresh database
@@ -24,9 +24,10 @@ async function waitFor(url: string, ms: number) {
 }
 
 export default async function setup(project: TestProject) {
-  await dropTestDatabases("rm_e2e_");
-  await prepareTemplate();
-  const name = await createTestDatabase("rm_e2e");
+  await dropStaleDatabases();
+  const runId = newRunId();
+  const template = await prepareTemplate(runId);
+  const name = await createTestDatabase(template, "rm_e2e");
   const port = Number(process.env.E2E_APP_PORT ?? 3211);
   const origin = `http://127.0.0.1:${port}`;
   process.env.APP_ORIGIN = origin;
@@ -67,6 +68,7 @@ export default async function setup(project: TestProject) {
           }),
       ),
     );
+    await dropRunDatabases(runId);
   };
 }
 

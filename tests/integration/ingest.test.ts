@@ -135,6 +135,27 @@ describe("ingest", () => {
     expect(Number(total.n)).toBe(12);
   });
 
+  it("reports a timestamp repeated later in the file against the row that kept it", async () => {
+    const body = file([
+      ["2025-10-01T00:00:00Z", "400", "12"],
+      ["2025-10-01T00:15:00Z", "401", "12"],
+      ["2025-10-01T00:30:00Z", "402", "12"],
+      ["2025-10-01T00:15:00Z", "999", "12"], // row 5 repeats row 3's time
+      ["2025-10-01T00:10:00Z", "403", "12"], // out of order but new: kept
+    ]);
+    const up = await uploadFile(jar, { fileName: "october.csv", body, siteId, loggerId, profileId });
+    const done = await processUpload(up.uploadId!);
+    expect(done.status).toBe("done");
+    expect(done.rows_accepted).toBe(4);
+    expect(done.rows_rejected).toBe(1);
+    const rows = await readingsOf(up.uploadId!);
+    expect(rows.map((r) => r.conductivity_us_cm)).toEqual([400, 403, 401, 402]);
+    const errors = await db.selectFrom("upload_error").selectAll().where("upload_id", "=", up.uploadId!).execute();
+    expect(errors).toHaveLength(1);
+    expect(errors[0].row_number).toBe(5);
+    expect(errors[0].reason).toContain("earlier in this file (row 3)");
+  });
+
   it("stops a mostly failing file with one clear message and stores no readings", async () => {
     // A semicolon file read with a comma profile: every row is one field.
     const body = ["Timestamp (UTC);Cond (uS/cm);Temp (C)", ...series("2025-06-01T00:00:00Z", 30).map((r) => r.join(";"))].join("\n");
