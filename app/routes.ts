@@ -12,6 +12,13 @@ export default [
     index("routes/overview.tsx"),
     route("account", "routes/account.tsx"),
 
+    // Logger file uploads and the import profiles that read them (technicians, officers, admins).
+    route("uploads", "routes/uploads/uploads.tsx"),
+    route("uploads/:uploadId", "routes/uploads/upload.tsx"),
+    route("import-profiles", "routes/import-profiles/profiles.tsx"),
+    route("import-profiles/new", "routes/import-profiles/profile-new.tsx"),
+    route("import-profiles/:profileId", "routes/import-profiles/profile.tsx"),
+
     // Administration (admin role only).
     ...prefix("admin", [
       route("people", "routes/admin/people.tsx"),

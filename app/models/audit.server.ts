@@ -4,7 +4,7 @@ import { db } from "#app/utils/db.server.ts";
 
 type Executor = typeof db | Transaction<DB>;
 
-export type AuditEntity = "person" | "site" | "logger" | "lab_sample";
+export type AuditEntity = "person" | "site" | "logger" | "import_profile" | "lab_sample";
 
 type Json = string | number | boolean | null | Json[] | { [key: string]: Json };
 export type AuditValues = Record<string, Json>;

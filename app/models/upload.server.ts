@@ -151,7 +151,7 @@ export async function uploadStatuses(ids: string[]) {
     .selectFrom("upload")
     .select([
       "id", "file_name", "status", "message", "size_bytes", "bytes_processed", "rows_total", "rows_accepted",
-      "rows_rejected", "rows_duplicate", "first_reading_at", "last_reading_at", "duplicate_of",
+      "rows_rejected", "rows_duplicate", "first_reading_at", "last_reading_at", "duplicate_of", "uploaded_by",
     ])
     .where("id", "in", ids)
     .execute();

@@ -5,11 +5,13 @@ import { db } from "#app/utils/db.server.ts";
 import { request, signIn, type Jar } from "../support/app.ts";
 import { createPeople, TEST_PASSWORD } from "../support/people.ts";
 import { createFixedRecords, FIXED } from "../support/fixed-records.ts";
+import { createFixedUploadRecords, FIXED_UPLOAD } from "../support/fixed-uploads.ts";
 import type { RoleName } from "#db/schema.ts";
 
 // The authorisation table: every route in app/routes.ts × every role × signed out. Adding a route
 // without a row here fails the "covers every route" test below.
 const ALL: RoleName[] = ["technician", "officer", "manager", "admin"];
+const FIELD: RoleName[] = ["technician", "officer", "admin"];
 type Row = {
   pattern: string; // as written in routes.ts (path params as :name)
   path?: string; // a concrete path to request; defaults to pattern
@@ -27,6 +29,12 @@ export const AUTH_TABLE: Row[] = [
   { pattern: "reset-password/:token", path: "reset-password/not-a-real-token", public: true },
   { pattern: "/", get: ALL },
   { pattern: "account", get: ALL, post: ALL },
+  { pattern: "uploads", get: FIELD, post: FIELD },
+  // The fixed upload belongs to technician@test.example, so the technician gets 200 here.
+  { pattern: "uploads/:uploadId", path: `uploads/${FIXED_UPLOAD.uploadId}`, get: FIELD, post: FIELD },
+  { pattern: "import-profiles", get: FIELD, post: FIELD },
+  { pattern: "import-profiles/new", get: FIELD, post: FIELD },
+  { pattern: "import-profiles/:profileId", path: `import-profiles/${FIXED_UPLOAD.profileId}`, get: FIELD, post: FIELD },
   { pattern: "admin/people", get: ["admin"], post: ["admin"] },
   { pattern: "admin/people/:personId", path: `admin/people/${FIXED.personId}`, get: ["admin"], post: ["admin"] },
   { pattern: "admin/sites", get: ["admin"], post: ["admin"] },
@@ -63,6 +71,7 @@ let jars: Record<RoleName, Jar>;
 beforeAll(async () => {
   await createPeople(db);
   await createFixedRecords(db);
+  await createFixedUploadRecords(db);
   jars = Object.fromEntries(
     await Promise.all(ALL.map(async (r) => [r, await signIn(`${r}@test.example`, TEST_PASSWORD)] as const)),
   ) as Record<RoleName, Jar>;

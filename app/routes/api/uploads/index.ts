@@ -21,9 +21,10 @@ const presignSchema = z.object({
 const confirmSchema = z.object({ intent: z.literal("confirm"), uploadId: z.string().uuid() });
 
 export async function loader({ request }: Route.LoaderArgs) {
-  await requireUser(request, { roles: FIELD_ROLES });
+  const user = await requireUser(request, { roles: FIELD_ROLES });
   const ids = (new URL(request.url).searchParams.get("ids") ?? "").split(",").filter((id) => z.string().uuid().safeParse(id).success).slice(0, 100);
-  const rows = await uploadStatuses(ids);
+  // Technicians follow only their own uploads (as on the upload pages); others' ids are left out.
+  const rows = (await uploadStatuses(ids)).filter((r) => user.role !== "technician" || r.uploaded_by === user.id);
   return Response.json(
     {
       uploads: rows.map((r) => ({
@@ -38,6 +39,7 @@ export async function loader({ request }: Route.LoaderArgs) {
         rowsDuplicate: r.rows_duplicate,
         firstReadingAt: r.first_reading_at,
         lastReadingAt: r.last_reading_at,
+        duplicateOf: r.duplicate_of,
       })),
     },
     { headers: { "Cache-Control": "no-store" } },

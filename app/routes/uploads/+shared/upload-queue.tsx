@@ -1,0 +1,720 @@
+import { useCallback, useEffect, useRef, useState } from "react";
+import { Link } from "react-router";
+import { sniffFile } from "#app/lib/import/sniff.ts";
+import { readFileSample, type Sample } from "../../import-profiles/+shared/sample.ts";
+import { MapColumnsDialog } from "./map-columns-dialog.tsx";
+import { countsText, formatBytes, ProgressBar, rangeText } from "./status-views.tsx";
+import { confirm, fetchStatuses, presign, putFile, PutFailed, sha256Hex, type Presigned, type UploadStatusJson } from "./transfer.ts";
+
+// The files a person is uploading now. Each file goes: reading (first 64 KB, layout sniffed) →
+// checking (SHA-256) → ready (the person checks logger, site and profile) → waiting for a slot →
+// sending (bytes to storage, with progress) → confirming → queued → processing → done, failed or
+// duplicate. Up to PARALLEL files are sent at once. A failure before the server holds the file
+// leaves it in the list with "Try again"; nothing is dropped silently.
+
+export type SiteChoice = { id: string; code: string; name: string; assigned: boolean };
+export type LoggerChoice = { id: string; serial: string; model: string; siteId: string | null };
+export type ProfileChoice = { id: string; name: string; headerSignature: string };
+
+const PARALLEL = 3;
+const POLL_MS = 1000;
+
+type Phase =
+  | "reading"
+  | "checking"
+  | "ready"
+  | "blocked"
+  | "waiting"
+  | "sending"
+  | "confirming"
+  | "queued"
+  | "processing"
+  | "done"
+  | "failed"
+  | "duplicate"
+  | "error";
+
+type Field = "loggerId" | "siteId" | "profileId";
+
+type Item = {
+  key: string;
+  file: File;
+  phase: Phase;
+  sample: Sample | null;
+  headerSignature: string;
+  serialHint: string | null;
+  /** Why the file cannot be uploaded (empty, binary, same as another file in the list). */
+  blockedBecause: string | null;
+  sha256: string | null;
+  /** Upload was asked for while the file was still being checked. */
+  startWhenChecked: boolean;
+  loggerId: string;
+  siteId: string;
+  profileId: string;
+  prefilled: { logger: boolean; site: boolean; profile: boolean };
+  missing: Field[];
+  sentFraction: number;
+  uploadId: string | null;
+  presigned: Presigned | null;
+  status: UploadStatusJson | null;
+  /** The last step changed the server status without telling the details: fetch them once. */
+  needsStatus: boolean;
+  message: string | null;
+  retryable: boolean;
+  duplicateOf: string | null;
+};
+
+const BEFORE_SENDING: Phase[] = ["reading", "checking", "ready", "blocked"];
+const IN_FLIGHT: Phase[] = ["waiting", "sending", "confirming"];
+const FOLLOWING: Phase[] = ["queued", "processing"];
+const FINISHED: Phase[] = ["done", "failed", "duplicate"];
+
+const FIELD_MESSAGES: Record<Field, string> = {
+  loggerId: "Choose the logger",
+  siteId: "Choose the site",
+  profileId: "Choose an import profile, or map the columns",
+};
+
+let keyCounter = 0;
+
+export function UploadQueue({
+  sites,
+  loggers,
+  profiles,
+  onFinished,
+}: {
+  sites: SiteChoice[];
+  loggers: LoggerChoice[];
+  profiles: ProfileChoice[];
+  onFinished: () => void;
+}) {
+  const itemsRef = useRef<Item[]>([]);
+  const [items, setItems] = useState<Item[]>([]);
+  const active = useRef(new Set<string>());
+  const hashing = useRef<Promise<void>>(Promise.resolve());
+  const [extraProfiles, setExtraProfiles] = useState<ProfileChoice[]>([]);
+  const allProfiles = [...extraProfiles.filter((p) => !profiles.some((q) => q.id === p.id)), ...profiles];
+  const profilesRef = useRef(allProfiles);
+  profilesRef.current = allProfiles;
+  const [mapping, setMapping] = useState<string | null>(null);
+  const onFinishedRef = useRef(onFinished);
+  onFinishedRef.current = onFinished;
+
+  // The ref is the source of truth (async steps read it); state mirrors it for rendering.
+  const commit = useCallback((next: Item[]) => {
+    itemsRef.current = next;
+    setItems(next);
+  }, []);
+  const patch = useCallback(
+    (key: string, change: Partial<Item> | ((item: Item) => Partial<Item>)) => {
+      commit(itemsRef.current.map((it) => (it.key === key ? { ...it, ...(typeof change === "function" ? change(it) : change) } : it)));
+    },
+    [commit],
+  );
+  const get = (key: string) => itemsRef.current.find((i) => i.key === key);
+
+  function prefill(sample: Sample | null, sniffed: { serialHint: string | null; headerSignature: string }) {
+    const logger = sniffed.serialHint ? loggers.find((l) => l.serial.toLowerCase() === sniffed.serialHint!.toLowerCase()) : undefined;
+    const profile = sniffed.headerSignature ? profilesRef.current.find((p) => p.headerSignature === sniffed.headerSignature) : undefined;
+    return {
+      loggerId: logger?.id ?? "",
+      siteId: logger?.siteId ?? "",
+      profileId: profile?.id ?? "",
+      prefilled: { logger: !!logger, site: !!logger?.siteId, profile: !!profile },
+      sample,
+    };
+  }
+
+  async function addFiles(files: File[]) {
+    const added: Item[] = files.map((file) => ({
+      key: `f${++keyCounter}`,
+      file,
+      phase: "reading",
+      sample: null,
+      headerSignature: "",
+      serialHint: null,
+      blockedBecause: null,
+      sha256: null,
+      startWhenChecked: false,
+      loggerId: "",
+      siteId: "",
+      profileId: "",
+      prefilled: { logger: false, site: false, profile: false },
+      missing: [],
+      sentFraction: 0,
+      uploadId: null,
+      presigned: null,
+      status: null,
+      needsStatus: false,
+      message: null,
+      retryable: false,
+      duplicateOf: null,
+    }));
+    commit([...itemsRef.current, ...added]);
+    for (const item of added) void prepare(item);
+  }
+
+  async function prepare(item: Item) {
+    const { file, key } = item;
+    if (file.size === 0) {
+      patch(key, { phase: "blocked", blockedBecause: "The file is empty." });
+      return;
+    }
+    try {
+      const sample = await readFileSample(file);
+      const sniffed = sniffFile(sample.text, { fileName: file.name, truncated: sample.truncated });
+      if (sniffed.problem && (sniffed.problem.kind === "empty" || sniffed.problem.kind === "binary")) {
+        patch(key, { phase: "blocked", blockedBecause: sniffed.problem.message });
+        return;
+      }
+      patch(key, { phase: "checking", serialHint: sniffed.serialHint, headerSignature: sniffed.headerSignature, ...prefill(sample, sniffed) });
+    } catch {
+      patch(key, { phase: "blocked", blockedBecause: "The file could not be read. Is it still on this computer?" });
+      return;
+    }
+    // One file at a time: hashing holds the whole file in memory.
+    hashing.current = hashing.current.then(async () => {
+      if (!get(key)) return; // removed meanwhile
+      try {
+        const sha256 = await sha256Hex(file);
+        const twin = itemsRef.current.find((o) => o.key !== key && o.sha256 === sha256);
+        if (twin) {
+          patch(key, { phase: "blocked", sha256, blockedBecause: `Same content as “${twin.file.name}” above: it is uploaded once.` });
+          return;
+        }
+        const current = get(key);
+        const missing = current ? missingFields(current) : [];
+        const start = (current?.startWhenChecked ?? false) && missing.length === 0;
+        patch(key, { sha256, phase: start ? "waiting" : "ready", missing: current?.startWhenChecked ? missing : [], startWhenChecked: false });
+        if (start) pump();
+      } catch {
+        patch(key, { phase: "blocked", blockedBecause: "The file could not be read to check it. Is it still on this computer?" });
+      }
+    });
+  }
+
+  function missingFields(it: Item): Field[] {
+    return (["loggerId", "siteId", "profileId"] as Field[]).filter((f) => !it[f]);
+  }
+
+  function uploadAll() {
+    commit(
+      itemsRef.current.map((it) => {
+        if (it.phase === "checking" || it.phase === "reading") return { ...it, startWhenChecked: true };
+        if (it.phase !== "ready") return it;
+        const missing = missingFields(it);
+        return missing.length ? { ...it, missing } : { ...it, phase: "waiting", missing: [] };
+      }),
+    );
+    pump();
+  }
+
+  function retry(key: string) {
+    patch(key, { phase: "waiting", message: null });
+    pump();
+  }
+
+  function pump() {
+    while (active.current.size < PARALLEL) {
+      const next = itemsRef.current.find((i) => i.phase === "waiting" && i.sha256 && !active.current.has(i.key));
+      if (!next) break;
+      active.current.add(next.key);
+      void send(next.key).finally(() => {
+        active.current.delete(next.key);
+        pump();
+      });
+    }
+  }
+
+  async function send(key: string) {
+    const item = get(key);
+    if (!item || !item.sha256) return;
+    patch(key, { phase: "sending", sentFraction: 0, message: null });
+    // A retry after a failed transfer reuses the signed address while it is still good.
+    let target = item.presigned && item.presigned.expiresAt - Date.now() > 60_000 ? item.presigned : null;
+    if (!target) {
+      const answer = await presign({ file: item.file, sha256: item.sha256, siteId: item.siteId, loggerId: item.loggerId, profileId: item.profileId });
+      if (answer.kind === "duplicate") {
+        patch(key, { phase: "duplicate", message: answer.message, duplicateOf: answer.uploadId });
+        return;
+      }
+      if (answer.kind === "refused") {
+        const missing = answer.fields.filter((f): f is Field => f === "loggerId" || f === "siteId" || f === "profileId");
+        patch(key, { phase: "error", message: answer.message, retryable: answer.retryable, missing });
+        return;
+      }
+      target = answer;
+      patch(key, { uploadId: answer.uploadId, presigned: answer });
+    }
+    let shown = -1;
+    try {
+      await putFile(target, item.file, (sent, total) => {
+        const percent = Math.floor((sent / total) * 100);
+        if (percent !== shown) {
+          shown = percent;
+          patch(key, { sentFraction: sent / total });
+        }
+      });
+    } catch (e) {
+      const failed = e instanceof PutFailed ? e : new PutFailed("The transfer failed", false);
+      patch(key, (it) => ({
+        phase: "error",
+        retryable: true,
+        message: `${failed.message}. Nothing is lost: the file is still here, try again.`,
+        presigned: failed.mustPresignAgain ? null : it.presigned,
+      }));
+      return;
+    }
+    patch(key, { phase: "confirming", sentFraction: 1 });
+    const confirmed = await confirm(target.uploadId);
+    if (!confirmed.ok) {
+      patch(key, { phase: "error", message: confirmed.message, retryable: confirmed.retryable });
+      return;
+    }
+    const phase: Phase = confirmed.status === "awaiting-file" ? "queued" : confirmed.status;
+    patch(key, { phase, needsStatus: true });
+  }
+
+  // Follow the server's status of every file it holds that is not finished yet.
+  const followIds = items
+    .filter((i) => i.uploadId && (FOLLOWING.includes(i.phase) || i.needsStatus))
+    .map((i) => i.uploadId!)
+    .join(",");
+  useEffect(() => {
+    if (!followIds) return;
+    let stopped = false;
+    let busy = false;
+    async function poll() {
+      if (busy || stopped) return;
+      busy = true;
+      const statuses = await fetchStatuses(followIds.split(","));
+      busy = false;
+      if (!statuses || stopped) return;
+      let finished = false;
+      commit(
+        itemsRef.current.map((it) => {
+          const s = statuses.find((x) => x.id === it.uploadId);
+          if (!s || !(FOLLOWING.includes(it.phase) || it.needsStatus)) return it;
+          const phase: Phase = s.status === "awaiting-file" ? it.phase : s.status;
+          if (FINISHED.includes(phase) && !FINISHED.includes(it.phase)) finished = true;
+          if (FINISHED.includes(phase) && it.needsStatus) finished = true;
+          return { ...it, status: s, phase, needsStatus: false, message: s.message, duplicateOf: s.duplicateOf ?? it.duplicateOf };
+        }),
+      );
+      if (finished) onFinishedRef.current();
+    }
+    void poll();
+    const timer = setInterval(poll, POLL_MS);
+    return () => {
+      stopped = true;
+      clearInterval(timer);
+    };
+  }, [followIds, commit]);
+
+  // Leaving the page while files are on their way would stop them: ask first.
+  const sending = items.some((i) => IN_FLIGHT.includes(i.phase));
+  useEffect(() => {
+    if (!sending) return;
+    const warn = (e: BeforeUnloadEvent) => {
+      e.preventDefault();
+    };
+    window.addEventListener("beforeunload", warn);
+    return () => window.removeEventListener("beforeunload", warn);
+  }, [sending]);
+
+  function choose(key: string, field: Field, value: string) {
+    patch(key, (it) => {
+      const next: Partial<Item> = { [field]: value, missing: it.missing.filter((f) => f !== field) };
+      // A refused file the server never took goes back to ready once its choices change.
+      if (it.phase === "error" && !it.uploadId) Object.assign(next, { phase: "ready", message: null });
+      if (field === "loggerId") {
+        next.prefilled = { ...it.prefilled, logger: false };
+        // The site follows the logger's deployment unless the person chose one already.
+        const logger = loggers.find((l) => l.id === value);
+        if (logger?.siteId && (!it.siteId || it.prefilled.site)) {
+          next.siteId = logger.siteId;
+          next.prefilled = { ...it.prefilled, logger: false, site: true };
+          next.missing = (next.missing ?? []).filter((f) => f !== "siteId");
+        }
+      }
+      if (field === "siteId") next.prefilled = { ...it.prefilled, site: false };
+      if (field === "profileId") next.prefilled = { ...it.prefilled, profile: false };
+      return next;
+    });
+  }
+
+  function profileSaved(key: string, saved: ProfileChoice) {
+    setExtraProfiles((list) => [saved, ...list.filter((p) => p.id !== saved.id)]);
+    // Other files of the same layout that have no profile yet get it too.
+    commit(
+      itemsRef.current.map((it) =>
+        it.key === key || (BEFORE_SENDING.includes(it.phase) && !it.profileId && it.headerSignature && it.headerSignature === saved.headerSignature)
+          ? { ...it, profileId: saved.id, prefilled: { ...it.prefilled, profile: it.key !== key }, missing: it.missing.filter((f) => f !== "profileId") }
+          : it,
+      ),
+    );
+    setMapping(null);
+  }
+
+  function remove(key: string) {
+    commit(itemsRef.current.filter((i) => i.key !== key));
+  }
+
+  function clearFinished() {
+    commit(itemsRef.current.filter((i) => !FINISHED.includes(i.phase)));
+  }
+
+  const startable = items.filter((i) => i.phase === "ready" || i.phase === "checking" || i.phase === "reading");
+  const mappingItem = mapping ? items.find((i) => i.key === mapping) : undefined;
+
+  return (
+    <div className="space-y-4">
+      <DropZone onFiles={addFiles} />
+      {items.length > 0 ? (
+        <section aria-labelledby="queue-title" className="space-y-3">
+          <div className="flex flex-wrap items-center justify-between gap-3">
+            <h2 id="queue-title">Files to upload</h2>
+            <div className="flex flex-wrap gap-2">
+              {items.some((i) => FINISHED.includes(i.phase)) ? (
+                <button type="button" className="btn-quiet" onClick={clearFinished}>
+                  Clear finished files
+                </button>
+              ) : null}
+              <button type="button" className="btn" onClick={uploadAll} disabled={startable.length === 0}>
+                {startable.length === 1 ? "Upload 1 file" : `Upload ${startable.length} files`}
+              </button>
+            </div>
+          </div>
+          <ul className="space-y-3">
+            {items.map((it) => (
+              <QueueEntry
+                key={it.key}
+                item={it}
+                sites={sites}
+                loggers={loggers}
+                profiles={allProfiles}
+                onChoose={(field, value) => choose(it.key, field, value)}
+                onMap={() => setMapping(it.key)}
+                onRetry={() => retry(it.key)}
+                onRemove={() => remove(it.key)}
+              />
+            ))}
+          </ul>
+        </section>
+      ) : null}
+      {mappingItem?.sample ? (
+        <MapColumnsDialog
+          key={mappingItem.key}
+          sample={mappingItem.sample}
+          onSaved={(saved) => profileSaved(mappingItem.key, saved)}
+          onClose={() => setMapping(null)}
+        />
+      ) : null}
+    </div>
+  );
+}
+
+function DropZone({ onFiles }: { onFiles: (files: File[]) => void }) {
+  const input = useRef<HTMLInputElement>(null);
+  const [over, setOver] = useState(false);
+  return (
+    <div
+      className={`flex flex-col items-center gap-3 rounded-xl border-2 border-dashed px-4 py-8 text-center ${over ? "border-lake-600 bg-lake-100" : "border-ink-300 bg-white"}`}
+      onDragOver={(e) => {
+        e.preventDefault();
+        e.dataTransfer.dropEffect = "copy";
+        setOver(true);
+      }}
+      onDragLeave={() => setOver(false)}
+      onDrop={(e) => {
+        e.preventDefault();
+        setOver(false);
+        onFiles(Array.from(e.dataTransfer.files));
+      }}
+    >
+      <p className="text-lg font-semibold">Drop logger files here</p>
+      <p className="text-ink-700">CSV or text exports, as many as you brought back from the round.</p>
+      <input
+        ref={input}
+        type="file"
+        multiple
+        accept=".csv,.txt,.tsv,.dat,text/csv,text/plain"
+        className="sr-only"
+        tabIndex={-1}
+        aria-label="Logger files"
+        data-testid="upload-input"
+        onChange={(e) => {
+          onFiles(Array.from(e.target.files ?? []));
+          e.target.value = "";
+        }}
+      />
+      <button type="button" className="btn" onClick={() => input.current?.click()}>
+        Choose files
+      </button>
+    </div>
+  );
+}
+
+function phaseProgress(it: Item): { percent: number | null; text: string; tone: "lake" | "reed" } | null {
+  switch (it.phase) {
+    case "reading":
+      return { percent: null, text: "Reading the file…", tone: "lake" };
+    case "checking":
+      return { percent: null, text: "Checking file…", tone: "lake" };
+    case "waiting":
+      return { percent: 0, text: "Waiting to send", tone: "lake" };
+    case "sending":
+      return { percent: it.sentFraction * 100, text: `Sending ${Math.floor(it.sentFraction * 100)}%`, tone: "lake" };
+    case "confirming":
+      return { percent: 100, text: "Sent, checking arrival", tone: "lake" };
+    case "queued":
+      return { percent: 0, text: "Queued for processing", tone: "lake" };
+    case "processing": {
+      const s = it.status;
+      const percent = s && s.sizeBytes > 0 ? (s.bytesProcessed / s.sizeBytes) * 100 : 0;
+      return { percent, text: `Processing ${Math.floor(percent)}%`, tone: "lake" };
+    }
+    case "done":
+      return { percent: 100, text: "Done 100%", tone: "reed" };
+    default:
+      return null;
+  }
+}
+
+const PHASE_WORDS: Record<Phase, string> = {
+  reading: "Reading the file",
+  checking: "Checking file",
+  ready: "Ready to upload",
+  blocked: "Cannot be uploaded",
+  waiting: "Waiting to send",
+  sending: "Sending",
+  confirming: "Sent",
+  queued: "Queued",
+  processing: "Processing",
+  done: "Done",
+  failed: "Failed",
+  duplicate: "Already uploaded",
+  error: "Not sent",
+};
+
+function QueueEntry({
+  item: it,
+  sites,
+  loggers,
+  profiles,
+  onChoose,
+  onMap,
+  onRetry,
+  onRemove,
+}: {
+  item: Item;
+  sites: SiteChoice[];
+  loggers: LoggerChoice[];
+  profiles: ProfileChoice[];
+  onChoose: (field: Field, value: string) => void;
+  onMap: () => void;
+  onRetry: () => void;
+  onRemove: () => void;
+}) {
+  const editable = BEFORE_SENDING.includes(it.phase) || (it.phase === "error" && !it.uploadId);
+  const progress = phaseProgress(it);
+  const id = `q-${it.key}`;
+  const logger = loggers.find((l) => l.id === it.loggerId);
+  const site = sites.find((s) => s.id === it.siteId);
+  const profile = profiles.find((p) => p.id === it.profileId);
+  const matching = it.headerSignature ? profiles.filter((p) => p.headerSignature === it.headerSignature) : [];
+  const deployedElsewhere = logger?.siteId && it.siteId && logger.siteId !== it.siteId ? sites.find((s) => s.id === logger.siteId) : undefined;
+  const status = it.status;
+  const removable = !IN_FLIGHT.includes(it.phase) && !FOLLOWING.includes(it.phase);
+
+  return (
+    <li className="card space-y-3" aria-labelledby={`${id}-name`} data-testid="upload-entry" data-phase={it.phase}>
+      <div className="flex flex-wrap items-start justify-between gap-2">
+        <div>
+          <h3 id={`${id}-name`} className="break-all font-semibold">{it.file.name}</h3>
+          <p className="text-sm text-ink-500">{formatBytes(it.file.size)}</p>
+        </div>
+        {removable ? (
+          <button type="button" className="btn-quiet px-2 py-1 text-sm" onClick={onRemove} aria-label={`Remove ${it.file.name} from the list`}>
+            Remove
+          </button>
+        ) : null}
+      </div>
+
+      {editable && it.phase !== "blocked" ? (
+        <div className="grid gap-3 md:grid-cols-3">
+          <Choice
+            id={`${id}-logger`}
+            label="Logger"
+            value={it.loggerId}
+            error={it.missing.includes("loggerId") ? FIELD_MESSAGES.loggerId : null}
+            note={it.prefilled.logger && it.serialHint ? `Serial ${it.serialHint} found in the file.` : null}
+            onChange={(v) => onChoose("loggerId", v)}
+          >
+            <option value="">Choose…</option>
+            {loggers.map((l) => (
+              <option key={l.id} value={l.id}>
+                {l.serial}
+                {l.siteId ? ` · at ${sites.find((s) => s.id === l.siteId)?.code ?? "a site"}` : " · not deployed"}
+              </option>
+            ))}
+          </Choice>
+          <Choice
+            id={`${id}-site`}
+            label="Site"
+            value={it.siteId}
+            error={it.missing.includes("siteId") ? FIELD_MESSAGES.siteId : null}
+            note={
+              deployedElsewhere
+                ? `${logger!.serial} is deployed at ${deployedElsewhere.code} now; these readings will be stored for ${site?.code}.`
+                : it.prefilled.site && logger
+                  ? `Where ${logger.serial} is deployed now.`
+                  : null
+            }
+            warn={!!deployedElsewhere}
+            onChange={(v) => onChoose("siteId", v)}
+          >
+            <option value="">Choose…</option>
+            <SiteOptions sites={sites} />
+          </Choice>
+          <div>
+            <Choice
+              id={`${id}-profile`}
+              label="Import profile"
+              value={it.profileId}
+              error={it.missing.includes("profileId") ? FIELD_MESSAGES.profileId : null}
+              note={
+                it.prefilled.profile && profile
+                  ? "Its header line matches this file."
+                  : matching.length === 0 && it.phase !== "reading"
+                    ? "No saved profile matches this file's header line."
+                    : null
+              }
+              onChange={(v) => onChoose("profileId", v)}
+            >
+              <option value="">Choose…</option>
+              {[...matching, ...profiles.filter((p) => !matching.includes(p))].map((p) => (
+                <option key={p.id} value={p.id}>
+                  {p.name}
+                  {matching.includes(p) ? " (matches this file)" : ""}
+                </option>
+              ))}
+            </Choice>
+            {it.sample ? (
+              <button type="button" className={`mt-2 ${matching.length === 0 ? "btn" : "btn-quiet"} py-1 text-sm`} onClick={onMap}>
+                Map the columns
+              </button>
+            ) : null}
+          </div>
+        </div>
+      ) : !editable ? (
+        <p className="text-sm text-ink-700">
+          {logger?.serial ?? "—"} · {site ? `${site.code} ${site.name}` : "—"} · {profile?.name ?? "no profile"}
+        </p>
+      ) : null}
+
+      {progress ? <ProgressBar label={`Progress of ${it.file.name}`} percent={progress.percent} text={progress.text} tone={progress.tone} /> : null}
+
+      <div aria-live="polite" className="text-sm" data-testid="upload-outcome">
+        <p className="font-semibold">
+          <span className="sr-only">{it.file.name}: </span>
+          {PHASE_WORDS[it.phase]}
+          {it.phase === "processing" && status ? ` · ${status.rowsTotal.toLocaleString("en-GB")} rows read` : ""}
+        </p>
+        {it.phase === "done" && status ? (
+          <>
+            <p data-testid="upload-counts">{countsText(status)}</p>
+            {rangeText(status.firstReadingAt, status.lastReadingAt) ? <p>Covers {rangeText(status.firstReadingAt, status.lastReadingAt)}</p> : null}
+            {status.message ? <p className="text-ink-700">{status.message}</p> : null}
+          </>
+        ) : null}
+        {it.phase === "blocked" ? <p className="text-brick-700">{it.blockedBecause}</p> : null}
+        {it.phase === "failed" ? <p className="text-brick-700">{it.message ?? "Processing failed."}</p> : null}
+        {it.phase === "duplicate" ? (
+          <p className="text-amber-700">
+            {it.message ?? "This file was uploaded before; it was not ingested again."}{" "}
+            {it.duplicateOf ? (
+              <Link to={`/uploads/${it.duplicateOf}`} className="text-lake-700 underline">
+                Open the earlier upload
+              </Link>
+            ) : null}
+          </p>
+        ) : null}
+        {it.phase === "error" ? <p className="text-brick-700">{it.message}</p> : null}
+      </div>
+
+      <div className="flex flex-wrap gap-2">
+        {it.phase === "error" && it.retryable ? (
+          <button type="button" className="btn" onClick={onRetry}>
+            Try again
+          </button>
+        ) : null}
+        {it.phase === "error" && !it.retryable && !it.uploadId ? (
+          <span className="text-sm text-ink-500">Change the choices above, then upload again.</span>
+        ) : null}
+        {it.uploadId && (FINISHED.includes(it.phase) || FOLLOWING.includes(it.phase)) ? (
+          <Link to={`/uploads/${it.uploadId}`} className="btn-quiet py-1 text-sm">
+            Open the upload
+          </Link>
+        ) : null}
+      </div>
+    </li>
+  );
+}
+
+function SiteOptions({ sites }: { sites: SiteChoice[] }) {
+  const mine = sites.filter((s) => s.assigned);
+  const others = sites.filter((s) => !s.assigned);
+  const option = (s: SiteChoice) => (
+    <option key={s.id} value={s.id}>
+      {s.code} · {s.name}
+    </option>
+  );
+  if (mine.length === 0) return <>{others.map(option)}</>;
+  return (
+    <>
+      <optgroup label="Your sites">{mine.map(option)}</optgroup>
+      <optgroup label="Other sites">{others.map(option)}</optgroup>
+    </>
+  );
+}
+
+function Choice({
+  id,
+  label,
+  value,
+  error,
+  note,
+  warn,
+  onChange,
+  children,
+}: {
+  id: string;
+  label: string;
+  value: string;
+  error: string | null;
+  note: string | null;
+  warn?: boolean;
+  onChange: (value: string) => void;
+  children: React.ReactNode;
+}) {
+  const describedBy = [note ? `${id}-note` : null, error ? `${id}-error` : null].filter(Boolean).join(" ") || undefined;
+  return (
+    <div>
+      <label htmlFor={id} className="field-label">{label}</label>
+      <select id={id} className="field-input" value={value} aria-invalid={error ? true : undefined} aria-describedby={describedBy} onChange={(e) => onChange(e.target.value)}>
+        {children}
+      </select>
+      {note ? (
+        <p id={`${id}-note`} className={`mt-0.5 text-sm ${warn ? "text-amber-700" : "text-ink-500"}`}>
+          {note}
+        </p>
+      ) : null}
+      {error ? (
+        <p id={`${id}-error`} className="field-error">
+          {error}
+        </p>
+      ) : null}
+    </div>
+  );
+}
