@@ -4,11 +4,15 @@ import { run, type TaskList } from "graphile-worker";
 import { getEnv } from "#app/utils/env.server.ts";
 import { runIngestJob } from "#app/jobs/ingest.server.ts";
 import { runRecomputeJob } from "#app/jobs/recompute.server.ts";
+import { runReadingsChanged, type ReadingsChange } from "#app/jobs/readings-changed.server.ts";
 
 const tasks: TaskList = {
   "ingest-upload": async (payload, helpers) => {
     const { uploadId } = payload as { uploadId: string };
     await runIngestJob(uploadId, helpers.job.attempts);
+  },
+  "readings-changed": async (payload) => {
+    await runReadingsChanged(payload as ReadingsChange);
   },
   "recompute-site": async (payload) => {
     const { siteId, settingsId } = payload as { siteId: string; settingsId: number };

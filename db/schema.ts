@@ -206,6 +206,10 @@ export interface ReadingsTable {
   salinity_psu: number | null;
   settings_id: number | null;
   quality_flag: string | null;
+  /** Specific conductance as compensated, before any correction (0005). */
+  sc25_uncorrected_us_cm: number | null;
+  /** Correction applied to specific conductance, µS/cm; null when none (0005). */
+  correction_us_cm: number | null;
 }
 
 export interface IngestTables {

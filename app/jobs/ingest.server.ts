@@ -391,6 +391,11 @@ export async function runIngestJob(uploadId: string, attempt = 1) {
            where id = $1`,
           [uploadId, note, result.rowsTotal, result.accepted, result.rejected, result.duplicates, result.firstMs, result.lastMs],
         );
+        // What depends on readings (corrections, exceedances, summaries) follows for this range.
+        if (result.firstMs !== null && result.lastMs !== null) {
+          const payload = { siteId: upload.site_id, fromMs: result.firstMs, toMs: result.lastMs, reason: "ingest" };
+          await client.query("select graphile_worker.add_job('readings-changed', $1::json, max_attempts => 10)", [JSON.stringify(payload)]);
+        }
         const c0 = performance.now();
         await client.query("commit");
         result.timings.commit = Math.round(performance.now() - c0);

@@ -30,6 +30,10 @@ export type RowBatch = {
 
 const EPOCH_2000_MS = Date.UTC(2000, 0, 1);
 
+/** The columns a load writes, in COPY order. Corrections (correction_us_cm) are applied later. */
+const DIRECT_COLUMNS = `site_id, logger_id, time, upload_id, row_number, conductivity_us_cm, logger_sc_us_cm,
+  temperature_c, ph, depth_m, battery_v, sc25_us_cm, tds_mg_l, salinity_psu, settings_id, sc25_uncorrected_us_cm`;
+
 function uuidField(uuid: string): Buffer {
   const hex = uuid.replace(/-/g, "");
   if (!/^[0-9a-f]{32}$/i.test(hex)) throw new Error(`not a uuid: ${uuid}`);
@@ -39,7 +43,7 @@ function uuidField(uuid: string): Buffer {
   return b;
 }
 
-/** Encodes rows in the binary COPY layout of `readings` (15 columns). */
+/** Encodes rows in the binary COPY layout of `readings` (the 16 columns listed in DIRECT_COLUMNS). */
 class DirectEncoder {
   private readonly site: Buffer;
   private readonly logger: Buffer;
@@ -50,7 +54,7 @@ class DirectEncoder {
     this.upload = uuidField(ids.uploadId);
   }
   encode(b: RowBatch, pick: (i: number) => boolean): Buffer {
-    const rowBytes = 2 + 20 * 3 + 12 + 8 * 2 + 12 * 9;
+    const rowBytes = 2 + 20 * 3 + 12 + 8 * 2 + 12 * 10;
     const buf = Buffer.allocUnsafe(b.n * rowBytes);
     let p = 0;
     const f8 = (x: number) => {
@@ -65,7 +69,7 @@ class DirectEncoder {
     };
     for (let i = 0; i < b.n; i++) {
       if (!pick(i)) continue;
-      buf.writeInt16BE(15, p);
+      buf.writeInt16BE(16, p);
       p += 2;
       this.site.copy(buf, p);
       p += 20;
@@ -95,6 +99,8 @@ class DirectEncoder {
       buf.writeInt32BE(4, p);
       buf.writeInt32BE(this.settingsId, p + 4);
       p += 8;
+      f8(b.sc25[i]); // sc25_uncorrected_us_cm: no correction is known at load time
+
     }
     return buf.subarray(0, p);
   }
@@ -226,10 +232,9 @@ export class ReadingSink {
     for (const r of inFile.rows) this.sameFileRepeats.push({ row: r.row_number, timeMs: r.time_ms, firstRow: r.first_row });
     const staged = await this.client.query<{ n: number }>("select count(*)::int as n from stage");
     const result = await this.client.query(
-      `insert into readings (site_id, logger_id, time, upload_id, row_number, conductivity_us_cm, logger_sc_us_cm,
-          temperature_c, ph, depth_m, battery_v, sc25_us_cm, tds_mg_l, salinity_psu, settings_id)
+      `insert into readings (${DIRECT_COLUMNS})
        select $1, $2, to_timestamp(time_ms / 1000.0), $3, row_number, conductivity, logger_sc, temperature, ph, depth, battery,
-          sc25, tds, salinity, $4
+          sc25, tds, salinity, $4, sc25
        from stage
        on conflict (site_id, time, logger_id) do nothing`,
       [this.ids.siteId, this.ids.loggerId, this.ids.uploadId, this.settingsId],
@@ -242,12 +247,7 @@ export class ReadingSink {
 
   private async switchToDirect() {
     await this.mergeStage();
-    this.directCopy = this.client.query(
-      copyFrom(
-        `copy readings (site_id, logger_id, time, upload_id, row_number, conductivity_us_cm, logger_sc_us_cm,
-           temperature_c, ph, depth_m, battery_v, sc25_us_cm, tds_mg_l, salinity_psu, settings_id) from stdin with (format binary)`,
-      ),
-    );
+    this.directCopy = this.client.query(copyFrom(`copy readings (${DIRECT_COLUMNS}) from stdin with (format binary)`));
     this.directCopy.write(copyHeader());
   }
 

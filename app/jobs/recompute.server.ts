@@ -48,13 +48,26 @@ export async function runRecomputeJob(siteId: string, settingsId: number) {
         // each batch is written straight away so memory holds one batch at a time.
         const b = batch;
         await client.query(
-          `update readings r set sc25_us_cm = t.sc25, tds_mg_l = t.tds, salinity_psu = t.salinity, settings_id = $2
+          // The correction (if any) is kept: shown SC = compensated SC + correction; TDS follows it.
+          `update readings r set sc25_uncorrected_us_cm = t.sc25,
+             sc25_us_cm = t.sc25 + coalesce(r.correction_us_cm, 0),
+             tds_mg_l = $8 * (t.sc25 + coalesce(r.correction_us_cm, 0)),
+             salinity_psu = t.salinity, settings_id = $2
            from unnest($3::timestamptz[], $4::uuid[], $5::float8[], $6::float8[], $7::float8[]) as t(time, logger_id, sc25, tds, salinity)
            where r.site_id = $1 and r.time = t.time and r.logger_id = t.logger_id`,
-          [siteId, settingsId, b.times, b.loggers, b.sc, b.tds, b.sal],
+          [siteId, settingsId, b.times, b.loggers, b.sc, b.tds, b.sal, settings.tds_factor],
         );
       }
       await client.query("close rows_cursor");
+      const range = await client.query<{ from_ms: number | null; to_ms: number | null }>(
+        "select extract(epoch from min(time)) * 1000 as from_ms, extract(epoch from max(time)) * 1000 as to_ms from readings where site_id = $1",
+        [siteId],
+      );
+      const { from_ms, to_ms } = range.rows[0];
+      if (from_ms !== null && to_ms !== null) {
+        const payload = { siteId, fromMs: Number(from_ms), toMs: Number(to_ms), reason: "recompute" };
+        await client.query("select graphile_worker.add_job('readings-changed', $1::json, max_attempts => 10)", [JSON.stringify(payload)]);
+      }
       await client.query("commit");
       return { rows: total };
     } catch (e) {

@@ -5,11 +5,12 @@ import { db } from "./db.server.ts";
 // The job queue is graphile-worker: jobs live in PostgreSQL (schema graphile_worker), so a job can
 // be enqueued in the same transaction as the change that needs it, and more workers on more
 // machines simply take jobs from the same database.
-export type JobName = "ingest-upload" | "recompute-site";
+export type JobName = "ingest-upload" | "recompute-site" | "readings-changed";
 
 export type JobPayloads = {
   "ingest-upload": { uploadId: string };
   "recompute-site": { siteId: string; settingsId: number };
+  "readings-changed": import("#app/jobs/readings-changed.server.ts").ReadingsChange;
 };
 
 export async function enqueue<N extends JobName>(

@@ -96,6 +96,11 @@ describe("ingest", () => {
     expect(errors[0].row_number).toBe(4);
     expect(errors[0].reason).toMatch(/negative/i);
 
+    // What depends on readings follows as a job for exactly this range.
+    const jobs = await sql<{ payload: { siteId: string; fromMs: number; toMs: number } }>`
+      select j.payload from graphile_worker._private_jobs j join graphile_worker._private_tasks t on t.id = j.task_id where t.identifier = 'readings-changed'`.execute(db);
+    expect(jobs.rows.map((j) => j.payload)).toContainEqual({ siteId, fromMs: Date.parse("2025-03-01T00:00:00Z"), toMs: Date.parse("2025-03-01T00:45:00Z"), reason: "ingest" });
+
     // The error report downloads as CSV.
     const csv = await request(`/api/uploads/${up.uploadId}/errors.csv`, { jar });
     expect(csv.status).toBe(200);
@@ -191,6 +196,8 @@ describe("ingest", () => {
     const before = await readingsOf(up.uploadId!);
     // Linear α = 0.0191 at 10 °C: 800 / (1 − 0.2865) = 1121.23 (by hand).
     expect(before[0].sc25_us_cm).toBeCloseTo(1121.23, 1);
+    // A correction on one reading (as a field visit would set) survives the recompute.
+    await db.updateTable("readings").set({ correction_us_cm: 10 }).where("site_id", "=", siteId).where("time", "=", before[1].time).execute();
     await db.updateTable("site").set({ compensation_method: "natural-water", tds_factor: 0.7 }).where("id", "=", siteId).execute();
     const settingsId = await currentSettingsId(siteId);
     await runRecomputeJob(siteId, settingsId);
@@ -200,6 +207,9 @@ describe("ingest", () => {
     expect(after[0].sc25_us_cm).toBeCloseTo(1142.4, 1);
     expect(after[0].tds_mg_l).toBeCloseTo(0.7 * 1142.4, 1);
     expect(after[0].settings_id).toBe(settingsId);
+    expect(after[0].sc25_uncorrected_us_cm).toBeCloseTo(1142.4, 1);
+    expect(after[1].sc25_us_cm! - after[1].sc25_uncorrected_us_cm!).toBeCloseTo(10, 9);
+    expect(after[1].tds_mg_l).toBeCloseTo(0.7 * after[1].sc25_us_cm!, 9);
     expect(after.map((r) => [r.conductivity_us_cm, r.temperature_c])).toEqual(before.map((r) => [r.conductivity_us_cm, r.temperature_c]));
     await db.updateTable("site").set({ compensation_method: "linear", tds_factor: 0.65 }).where("id", "=", siteId).execute();
   });

@@ -1,0 +1,20 @@
+// The `readings-changed` job: whatever depends on readings is brought up to date for one site and
+// one time range, after an ingest, a re-process, a recompute or a correction. Steps run in order
+// (corrections before exceedance detection, detection before summaries) and each must be
+// idempotent: the queue may run the job again after a failure.
+export type ReadingsChange = { siteId: string; fromMs: number; toMs: number; reason: "ingest" | "recompute" | "correction" | "manual" };
+
+export type ReadingsChangedStep = { name: string; run: (change: ReadingsChange) => Promise<void> };
+
+/** The steps, in the order they run. Each capability adds its own step here. */
+export const READINGS_CHANGED_STEPS: ReadingsChangedStep[] = [];
+
+export async function runReadingsChanged(change: ReadingsChange) {
+  for (const step of READINGS_CHANGED_STEPS) {
+    try {
+      await step.run(change);
+    } catch (e) {
+      throw new Error(`readings-changed step "${step.name}" failed: ${(e as Error).message}`, { cause: e });
+    }
+  }
+}
