@@ -32,10 +32,17 @@ export default [
       route("outbox", "routes/admin/outbox.tsx"),
     ]),
 
+    // Lab checks of grab-sample analyses (officers and admins).
+    route("lab", "routes/lab/samples.tsx"),
+    route("lab/new", "routes/lab/new.tsx"),
+    route("lab/:sampleId", "routes/lab/sample.tsx"),
+    route("lab/:sampleId/edit", "routes/lab/edit.tsx"),
+
   ]),
 
   route("api/health", "routes/api/health.ts"),
   route("api/uploads", "routes/api/uploads/index.ts"),
   route("api/uploads/:uploadId/errors.csv", "routes/api/uploads/errors-csv.ts"),
+  route("api/lab/template.csv", "routes/api/lab/template-csv.ts"),
   route("*", "routes/not-found.tsx"),
 ] satisfies RouteConfig;

@@ -44,6 +44,10 @@ export const AUTH_TABLE: Row[] = [
   { pattern: "admin/loggers/new", get: ["admin"], post: ["admin"] },
   { pattern: "admin/loggers/:loggerId", path: `admin/loggers/${FIXED.loggerId}`, get: ["admin"], post: ["admin"] },
   { pattern: "admin/outbox", get: ["admin"], post: ["admin"] },
+  { pattern: "lab", get: ["officer", "admin"], post: ["officer", "admin"] },
+  { pattern: "lab/new", get: ["officer", "admin"], post: ["officer", "admin"] },
+  { pattern: "lab/:sampleId", path: `lab/${FIXED.labSampleId}`, get: ["officer", "admin"], post: ["officer", "admin"] },
+  { pattern: "lab/:sampleId/edit", path: `lab/${FIXED.labSampleId}/edit`, get: ["officer", "admin"], post: ["officer", "admin"] },
   { pattern: "api/health", public: true },
   { pattern: "api/uploads", get: ["technician", "officer", "admin"], post: ["technician", "officer", "admin"], api: true },
   {
@@ -52,6 +56,7 @@ export const AUTH_TABLE: Row[] = [
     api: true,
     skip: "needs an upload; covered in ingest.test.ts (404 for an unknown id after the role check)",
   },
+  { pattern: "api/lab/template.csv", get: ["officer", "admin"], post: ["officer", "admin"], api: true },
   { pattern: "*", path: "no/such/page", public: true, skip: "catch-all answers 404 to everyone" },
 ];
 

@@ -177,11 +177,13 @@ export function parseLabCsv(text: string, sites: readonly LabCsvSite[], now: Dat
       else if ("instant" in stamp) sampledAt = stamp.instant;
     }
 
+    const beforeIons = errorCount;
     const ions: Partial<Record<FormIon, number>> = {};
     for (const ion of FORM_IONS) {
       const v = numberOf(ion);
       if (v !== undefined) ions[ion] = v;
     }
+    const unreadableIon = errorCount > beforeIons;
     const input = {
       labReference: cell.get("labReference") || undefined,
       ions,
@@ -195,6 +197,8 @@ export function parseLabCsv(text: string, sites: readonly LabCsvSite[], now: Dat
     if (!checked.success) {
       for (const issue of checked.error.issues) {
         const [first, second] = issue.path as string[];
+        // "Two cations and two anions" follows from an unreadable ion cell already reported.
+        if (first === "ions" && !second && unreadableIon) continue;
         const field = (first === "ions" && second ? second : first) as Field;
         const column = first === "ions" && !second ? "ions" : (COLUMN_BY_FIELD.get(field)?.name ?? String(first));
         const raw = first === "ions" && !second ? "" : (cell.get(field) ?? "");
