@@ -109,7 +109,7 @@ export interface AuditEventTable {
   reason: string | null;
 }
 
-export interface DB extends IngestTables, LabTables, ThresholdTables {
+export interface DB extends IngestTables, LabTables, ThresholdTables, VisitTables {
   role: RoleTable;
   person: PersonTable;
   session: SessionTable;
@@ -265,4 +265,114 @@ export interface SiteThresholdTable {
 
 export interface ThresholdTables {
   site_threshold: SiteThresholdTable;
+}
+
+// ---- field visits, calibration checks, corrections, periods of record (0007) ----
+export type CorrectionKindName = "fouling" | "drift" | "other";
+export type CorrectionStatus = "proposed" | "approved" | "rejected";
+export type OffsetUnitName = "us_cm" | "percent";
+export type GradeName = "excellent" | "good" | "fair" | "poor" | "beyond-limit";
+export type StandardName = "1413" | "12.88" | "146.9" | "custom";
+
+export interface FieldVisitTable {
+  id: Generated<string>;
+  site_id: string;
+  logger_id: string;
+  visited_at: Timestamp;
+  technician_id: string | null;
+  before_sc_us_cm: number | null;
+  before_temperature_c: number | null;
+  after_sc_us_cm: number | null;
+  after_temperature_c: number | null;
+  meter_sc_us_cm: number | null;
+  meter_temperature_c: number | null;
+  fouling_error_us_cm: number | null;
+  fouling_error_percent: number | null;
+  fouling_passed: boolean | null;
+  temperature_error_c: number | null;
+  temperature_passed: boolean | null;
+  recalibrated: Generated<boolean>;
+  notes: Generated<string>;
+  photo_keys: ColumnType<string[], string[] | undefined, string[]>;
+  created_by: string | null;
+  updated_by: string | null;
+  created_at: CreatedAt;
+  updated_at: UpdatedAt;
+}
+
+export interface CalibrationCheckTable {
+  id: Generated<string>;
+  visit_id: string;
+  position: number;
+  standard: StandardName;
+  custom_value_us_cm: number | null;
+  standard_temperature_c: number;
+  sensor_us_cm: number;
+  expected_us_cm: number;
+  error_us_cm: number;
+  error_percent: number;
+  allowance_us_cm: number;
+  passed: boolean;
+  cell_constant_change_percent: number;
+}
+
+export interface CorrectionTable {
+  id: Generated<string>;
+  site_id: string;
+  logger_id: string;
+  kind: CorrectionKindName;
+  from_visit_id: string | null;
+  to_visit_id: string | null;
+  period_start: Timestamp;
+  period_end: Timestamp;
+  offset_unit: OffsetUnitName;
+  start_offset: Generated<number>;
+  end_offset: number;
+  status: Generated<CorrectionStatus>;
+  /** Null: proposed by Ripplemark from two visits. */
+  author_id: string | null;
+  reason: Generated<string>;
+  approved_by: string | null;
+  approved_at: Timestamp | null;
+  updated_by: string | null;
+  created_at: CreatedAt;
+  updated_at: UpdatedAt;
+}
+
+export interface RecordPeriodTable {
+  id: Generated<string>;
+  site_id: string;
+  logger_id: string;
+  from_visit_id: string | null;
+  to_visit_id: string | null;
+  period_start: Timestamp;
+  period_end: Timestamp;
+  grade: GradeName | null;
+  total_correction_percent: number | null;
+  approved_by: string | null;
+  approved_at: Timestamp | null;
+  locked: Generated<boolean>;
+  updated_at: UpdatedAt;
+}
+
+export interface RecordAuditTable {
+  id: Generated<string>;
+  at: CreatedAt;
+  person_id: string | null;
+  site_id: string;
+  entity: "field_visit" | "correction" | "record_period";
+  entity_id: string;
+  action: string;
+  before: ColumnType<unknown, string | null, string | null>;
+  after: ColumnType<unknown, string | null, string | null>;
+  reason: string | null;
+  in_locked_period: Generated<boolean>;
+}
+
+export interface VisitTables {
+  field_visit: FieldVisitTable;
+  calibration_check: CalibrationCheckTable;
+  correction: CorrectionTable;
+  record_period: RecordPeriodTable;
+  record_audit: RecordAuditTable;
 }

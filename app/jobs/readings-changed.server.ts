@@ -2,12 +2,17 @@
 // one time range, after an ingest, a re-process, a recompute or a correction. Steps run in order
 // (corrections before exceedance detection, detection before summaries) and each must be
 // idempotent: the queue may run the job again after a failure.
+import { applyCorrectionsStep } from "./apply-corrections.server.ts";
+
 export type ReadingsChange = { siteId: string; fromMs: number; toMs: number; reason: "ingest" | "recompute" | "correction" | "manual" };
 
 export type ReadingsChangedStep = { name: string; run: (change: ReadingsChange) => Promise<void> };
 
 /** The steps, in the order they run. Each capability adds its own step here. */
-export const READINGS_CHANGED_STEPS: ReadingsChangedStep[] = [];
+export const READINGS_CHANGED_STEPS: ReadingsChangedStep[] = [
+  // Keep first: approved corrections are applied before anything reads the readings.
+  applyCorrectionsStep,
+];
 
 export async function runReadingsChanged(change: ReadingsChange) {
   for (const step of READINGS_CHANGED_STEPS) {
