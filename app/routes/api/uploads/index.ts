@@ -20,6 +20,19 @@ const presignSchema = z.object({
 
 const confirmSchema = z.object({ intent: z.literal("confirm"), uploadId: z.string().uuid() });
 
+/** S3 unreachable or failing on its side (no answer, or a 5xx): the person can simply retry. */
+function isStorageUnavailable(error: unknown) {
+  const e = error as { name?: string; code?: string; $metadata?: { httpStatusCode?: number }; cause?: { code?: string } };
+  const status = e?.$metadata?.httpStatusCode;
+  if (status !== undefined) return status >= 500;
+  const code = e?.code ?? e?.cause?.code;
+  return (
+    e?.name === "TimeoutError" ||
+    e?.name === "TypeError" ||
+    ["ECONNREFUSED", "ECONNRESET", "ETIMEDOUT", "EPIPE", "ENOTFOUND", "EAI_AGAIN"].includes(code ?? "")
+  );
+}
+
 export async function loader({ request }: Route.LoaderArgs) {
   const user = await requireUser(request, { roles: FIELD_ROLES });
   const ids = (new URL(request.url).searchParams.get("ids") ?? "").split(",").filter((id) => z.string().uuid().safeParse(id).success).slice(0, 100);
@@ -78,9 +91,11 @@ export async function action({ request }: Route.ActionArgs) {
       return data({ ok: false, errors: { [error.field ?? "file"]: [error.message] } }, { status: error.status });
     }
     if (error instanceof RangeError) return data({ ok: false, errors: { file: [error.message] } }, { status: 400 });
-    const name = (error as Error).name;
-    if (name === "TimeoutError" || (error as NodeJS.ErrnoException).code === "ECONNREFUSED") {
-      return data({ ok: false, retryable: true, errors: { file: ["File storage is not answering just now. Nothing was lost: try again in a minute."] } }, { status: 503 });
+    if (isStorageUnavailable(error)) {
+      return data(
+        { ok: false, retryable: true, errors: { file: ["File storage is not answering just now. Nothing was lost: try again in a minute."] } },
+        { status: 503 },
+      );
     }
     throw error;
   }
