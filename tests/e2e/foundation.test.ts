@@ -7,10 +7,10 @@ const browser = useBrowser();
 
 // What each role's navigation must show and must not show (DESIGN.md's role table).
 const EXPECTED_NAV: Record<string, { shows: string[]; hides: string[] }> = {
-  technician: { shows: ["Overview"], hides: ["People", "Mail outbox"] },
-  officer: { shows: ["Overview"], hides: ["People", "Mail outbox"] },
-  manager: { shows: ["Overview"], hides: ["People", "Mail outbox"] },
-  admin: { shows: ["Overview", "People", "Sites", "Loggers", "Mail outbox"], hides: [] },
+  technician: { shows: ["Overview", "Uploads"], hides: ["People", "Mail outbox"] },
+  officer: { shows: ["Overview", "Uploads"], hides: ["People", "Mail outbox"] },
+  manager: { shows: ["Overview"], hides: ["Uploads", "People", "Mail outbox"] },
+  admin: { shows: ["Overview", "Uploads", "People", "Sites", "Loggers", "Mail outbox"], hides: [] },
 };
 
 describe("sign-in and navigation per role", () => {

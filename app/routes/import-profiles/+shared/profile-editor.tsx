@@ -77,6 +77,8 @@ function initialValues(props: Props): EditorValues {
 export function ProfileEditor(props: Props) {
   const { formId, action, allowPickSample, hidden, submitLabel, onSaved, onCancel } = props;
   const H = props.headingLevel === 3 ? "h3" : "h2";
+  // h2 has the base style; an h3 (in the dialog) looks the same size as its dialog's sections need.
+  const headingClass = props.headingLevel === 3 ? "text-lg font-semibold" : undefined;
   const fetcher = useFetcher<ProfileActionData>();
   const [sample, setSample] = useState<Sample | null>(props.sample);
   const [values, setValues] = useState<EditorValues>(() => initialValues(props));
@@ -163,7 +165,7 @@ export function ProfileEditor(props: Props) {
       <FormErrors errors={form.errors} />
 
       <section className="card space-y-3" aria-labelledby={id("sample-title")}>
-        <H id={id("sample-title")}>Sample of the file</H>
+        <H id={id("sample-title")} className={headingClass}>Sample of the file</H>
         {allowPickSample ? <SamplePicker id={id("sample-file")} onFile={chooseSample} hasSample={!!sample} /> : null}
         {sampleMessage ? <p role="alert" className="caution">{sampleMessage}</p> : null}
         {sample ? (
@@ -189,7 +191,7 @@ export function ProfileEditor(props: Props) {
       </section>
 
       <section className="card space-y-4" aria-labelledby={id("layout-title")}>
-        <H id={id("layout-title")}>Layout</H>
+        <H id={id("layout-title")} className={headingClass}>Layout</H>
         <div className="grid gap-4 sm:grid-cols-2 lg:grid-cols-3">
           <Labelled label="Values separated by" htmlFor={id("delimiter")} errors={errorsOf("delimiter")} errorId={`${id("delimiter")}-error`}>
             <select
@@ -302,7 +304,7 @@ export function ProfileEditor(props: Props) {
       </section>
 
       <section className="card space-y-3" aria-labelledby={id("columns-title")}>
-        <H id={id("columns-title")}>Columns</H>
+        <H id={id("columns-title")} className={headingClass}>Columns</H>
         <ErrorList id={`${id("columns")}-error`} errors={errorsOf("columns")} />
         {values.columns.length === 0 ? (
           <p className="text-ink-500">Choose a sample file to list its columns.</p>
@@ -333,7 +335,7 @@ export function ProfileEditor(props: Props) {
                         <input type="hidden" name={`columns[${i}].index`} value={c.index} />
                         <input type="hidden" name={`columns[${i}].header`} value={c.header} />
                       </td>
-                      <th scope="row" className="font-semibold">{c.header || <span className="text-ink-500">(no name)</span>}</th>
+                      <th scope="row" className="border-b border-ink-100 font-semibold">{c.header || <span className="text-ink-500">(no name)</span>}</th>
                       <td className="max-w-56 truncate font-mono text-sm text-ink-700">{columnSamples(records, values.dataStartLine - 1, c.index).join(" · ")}</td>
                       <td>
                         <select
@@ -379,8 +381,8 @@ export function ProfileEditor(props: Props) {
 
       {sample ? (
         <section className="card space-y-3" aria-labelledby={id("preview-title")}>
-          <H id={id("preview-title")}>How the first rows are read</H>
-          <SamplePreview values={values} records={records} />
+          <H id={id("preview-title")} className={headingClass}>How the first rows are read</H>
+          <SamplePreview values={values} sample={sample} />
         </section>
       ) : null}
 

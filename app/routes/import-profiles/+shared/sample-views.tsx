@@ -1,8 +1,10 @@
 import { useMemo } from "react";
 import type { MeasuredParameter } from "#app/lib/import/measurement-units.ts";
 import { PARAMETER_LABELS } from "#app/lib/import/profile.ts";
-import { compileProfile, createParsedRow, isBlankRow, type ParsedRow, type RowError } from "#app/lib/import/rows.ts";
+import { previewImport } from "#app/lib/import/preview.ts";
+import type { ParsedRow, RowError } from "#app/lib/import/rows.ts";
 import { buildProfile, DELIMITERS, type DelimiterName, type EditorValues } from "./profile-form.ts";
+import type { Sample } from "./sample.ts";
 
 // The two views of the sample in the profile editor: the file's first lines as they are split,
 // and how the first data rows read with the current settings. Everything from the file is
@@ -64,7 +66,7 @@ export function SampleTable({
               const kind = kindOf(i);
               return (
                 <tr key={i} className={KIND_CLASS[kind]} data-line-kind={kind}>
-                  <th scope="row" className="tabular-nums font-normal">{i + 1}</th>
+                  <th scope="row" className="border-b border-ink-100 tabular-nums font-normal">{i + 1}</th>
                   <td className="sr-only">{KIND_LABEL[kind]}</td>
                   {kind === "preamble" ? (
                     <td colSpan={width} className="whitespace-pre font-mono">{r.join(DELIMITERS[delimiter].char)}</td>
@@ -92,10 +94,14 @@ const VALUE_COLUMNS: { key: keyof ParsedRow; parameter: MeasuredParameter; unit:
   { key: "batteryV", parameter: "battery", unit: "V" },
 ];
 
-type PreviewRow = { line: number; ok: boolean; row: ParsedRow; errors: RowError[] };
+type PreviewLine = { line: number; row: ParsedRow | null; errors: RowError[] };
 
 function formatUtc(ms: number) {
   return new Date(ms).toISOString().replace("T", " ").replace(/\.000Z$/, "").replace(/Z$/, "");
+}
+
+function capitalise(text: string) {
+  return text.charAt(0).toUpperCase() + text.slice(1);
 }
 
 function formatValue(x: number) {
@@ -103,23 +109,29 @@ function formatValue(x: number) {
   return String(Math.round(x * 1000) / 1000);
 }
 
-/** The first ten data rows read with the current settings, in canonical units. */
-export function SamplePreview({ values, records }: { values: EditorValues; records: string[][] }) {
+/** The first ten data rows read with the current settings, in canonical units (previewImport, as the ingest reads them). */
+export function SamplePreview({ values, sample }: { values: EditorValues; sample: Sample }) {
   const outcome = useMemo(() => {
     const built = buildProfile(values);
-    if (!built.profile) return { problem: built.issues[0]?.message ?? "The settings are not complete yet.", rows: [], shown: [] };
+    if (!built.profile) return { problem: built.issues[0]?.message ?? "The settings are not complete yet.", lines: [], shown: [] };
     const profile = built.profile;
-    const parser = compileProfile(profile, { now: Date.now() });
-    const rows: PreviewRow[] = [];
-    for (let i = profile.dataStartRow; i < records.length && rows.length < 10; i++) {
-      if (isBlankRow(records[i])) continue;
-      const out = createParsedRow();
-      const ok = parser.parseRow(records[i], i + 1, out);
-      rows.push({ line: i + 1, ok, row: out, errors: ok ? [] : parser.lastErrors.map((e) => ({ ...e })) });
+    // A truncated sample ends in a cut line: leave it out.
+    const text = sample.truncated ? sample.text.slice(0, sample.text.lastIndexOf("\n") + 1) : sample.text;
+    const result = previewImport(text, profile, { now: Date.now(), maxRows: 10 });
+    const lines = new Map<number, PreviewLine>();
+    for (const r of result.rows) lines.set(r.row, { line: r.row, row: r, errors: [] });
+    for (const e of result.errors) {
+      const entry = lines.get(e.row) ?? { line: e.row, row: null, errors: [] };
+      entry.errors.push(e);
+      lines.set(e.row, entry);
     }
     const used = new Set(profile.columns.map((c) => c.parameter));
-    return { problem: null, rows, shown: VALUE_COLUMNS.filter((v) => used.has(v.parameter)) };
-  }, [values, records]);
+    return {
+      problem: null,
+      lines: [...lines.values()].sort((a, b) => a.line - b.line),
+      shown: VALUE_COLUMNS.filter((v) => used.has(v.parameter)),
+    };
+  }, [values, sample]);
 
   if (outcome.problem) {
     return (
@@ -128,11 +140,11 @@ export function SamplePreview({ values, records }: { values: EditorValues; recor
       </p>
     );
   }
-  const accepted = outcome.rows.filter((r) => r.ok).length;
+  const accepted = outcome.lines.filter((r) => r.row).length;
   return (
     <div className="space-y-2">
       <p className="text-sm text-ink-700" data-testid="preview-summary">
-        {accepted} of {outcome.rows.length} rows read; times in UTC, values in the units Ripplemark stores.
+        {accepted} of {outcome.lines.length} rows read; times in UTC, values in the units Ripplemark stores.
       </p>
       <div className="overflow-x-auto rounded border border-ink-100">
         <table className="data-table text-sm" data-testid="preview-table">
@@ -143,21 +155,21 @@ export function SamplePreview({ values, records }: { values: EditorValues; recor
               <th scope="col">Time (UTC)</th>
               {outcome.shown.map((v) => (
                 <th scope="col" key={v.key} className="text-right">
-                  {PARAMETER_LABELS[v.parameter]}
+                  {capitalise(PARAMETER_LABELS[v.parameter])}
                   {v.unit ? ` (${v.unit})` : ""}
                 </th>
               ))}
             </tr>
           </thead>
           <tbody>
-            {outcome.rows.map((r) => (
-              <tr key={r.line} className={r.ok ? "" : "bg-brick-100"}>
-                <th scope="row" className="tabular-nums font-normal">{r.line}</th>
-                {r.ok ? (
+            {outcome.lines.map((r) => (
+              <tr key={r.line} className={r.row ? "" : "bg-brick-100"}>
+                <th scope="row" className="border-b border-ink-100 tabular-nums font-normal">{r.line}</th>
+                {r.row ? (
                   <>
                     <td className="whitespace-nowrap tabular-nums">{formatUtc(r.row.timeMs)}</td>
                     {outcome.shown.map((v) => (
-                      <td key={v.key} className="text-right tabular-nums">{formatValue(r.row[v.key])}</td>
+                      <td key={v.key} className="text-right tabular-nums">{formatValue(r.row![v.key])}</td>
                     ))}
                   </>
                 ) : (

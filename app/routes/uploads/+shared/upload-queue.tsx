@@ -381,7 +381,7 @@ export function UploadQueue({
                 </button>
               ) : null}
               <button type="button" className="btn" onClick={uploadAll} disabled={startable.length === 0}>
-                {startable.length === 1 ? "Upload 1 file" : `Upload ${startable.length} files`}
+                {startable.length === 0 ? "Upload" : startable.length === 1 ? "Upload 1 file" : `Upload ${startable.length} files`}
               </button>
             </div>
           </div>
