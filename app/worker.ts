@@ -5,8 +5,10 @@ import { getEnv } from "#app/utils/env.server.ts";
 import { runIngestJob } from "#app/jobs/ingest.server.ts";
 import { runRecomputeJob } from "#app/jobs/recompute.server.ts";
 import { runReadingsChanged, type ReadingsChange } from "#app/jobs/readings-changed.server.ts";
+import { ALERT_TASKS } from "#app/jobs/alert-tasks.server.ts";
 
 const tasks: TaskList = {
+  ...ALERT_TASKS,
   "ingest-upload": async (payload, helpers) => {
     const { uploadId } = payload as { uploadId: string };
     await runIngestJob(uploadId, helpers.job.attempts);

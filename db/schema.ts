@@ -109,7 +109,7 @@ export interface AuditEventTable {
   reason: string | null;
 }
 
-export interface DB extends IngestTables, LabTables, ThresholdTables, VisitTables {
+export interface DB extends IngestTables, LabTables, ThresholdTables, VisitTables, AlertTables {
   role: RoleTable;
   person: PersonTable;
   session: SessionTable;
@@ -375,4 +375,109 @@ export interface VisitTables {
   correction: CorrectionTable;
   record_period: RecordPeriodTable;
   record_audit: RecordAuditTable;
+}
+
+// ---- alert rules, exceedances, notifications, alert e-mail (0006) ----
+export type AlertParameterName = "sc25" | "conductivity" | "temperature" | "tds" | "salinity" | "ph" | "depth" | "battery";
+export type AlertConditionName =
+  | "above"
+  | "below"
+  | "rate-of-change"
+  | "flat-line"
+  | "spike"
+  | "out-of-range"
+  | "temperature-range"
+  | "missing-data";
+export type ExceedanceStatus = "open" | "closed" | "withdrawn";
+export type ExceedanceOutcome = "water-quality" | "sensor-fault" | "calibration" | "field-work" | "undetermined";
+export type EmailSendStatus = "queued" | "sent" | "failed" | "held" | "summarised";
+
+export interface AlertRuleTable {
+  id: Generated<string>;
+  name: string;
+  parameter: AlertParameterName;
+  condition: AlertConditionName;
+  /** The condition's settings in canonical units (see app/lib/quality/alert-rules.ts). */
+  params: ColumnType<unknown, string, string>;
+  /** Listed sites; null = not limited to a list. */
+  site_ids: string[] | null;
+  /** Every site of these kinds; null = not limited by kind. Both null = every site. */
+  site_kinds: SiteKind[] | null;
+  notify_roles: ColumnType<RoleName[], RoleName[] | undefined, RoleName[]>;
+  email: Generated<boolean>;
+  emails_per_hour: Generated<number>;
+  enabled: Generated<boolean>;
+  guideline_source: Generated<string>;
+  default_key: string | null;
+  created_at: CreatedAt;
+  updated_at: UpdatedAt;
+  updated_by: string | null;
+}
+
+export interface ExceedanceTable {
+  id: Generated<string>;
+  rule_id: string;
+  site_id: string;
+  parameter: AlertParameterName;
+  condition: AlertConditionName;
+  started_at: Timestamp;
+  /** Null: still going on at the latest reading. */
+  ended_at: Timestamp | null;
+  last_reading_at: Timestamp;
+  duration_s: Generated<number>;
+  peak_value: number;
+  peak_at: Timestamp;
+  threshold_value: number | null;
+  clear_value: number | null;
+  status: Generated<ExceedanceStatus>;
+  /** Null until an officer classifies the event. */
+  outcome: ExceedanceOutcome | null;
+  comment: Generated<string>;
+  readings_flagged: Generated<number>;
+  detected_at: CreatedAt;
+  updated_at: UpdatedAt;
+  closed_by: string | null;
+  closed_at: Timestamp | null;
+}
+
+export interface ExceedanceAuditTable {
+  id: Generated<number>;
+  exceedance_id: string;
+  /** Null: Ripplemark's detection. */
+  person_id: string | null;
+  at: CreatedAt;
+  action: string;
+  before: ColumnType<unknown, string | null, string | null>;
+  after: ColumnType<unknown, string | null, string | null>;
+}
+
+export interface NotificationTable {
+  id: Generated<number>;
+  person_id: string;
+  exceedance_id: string;
+  created_at: CreatedAt;
+  read_at: Timestamp | null;
+}
+
+export interface EmailSendTable {
+  id: Generated<string>;
+  rule_id: string;
+  exceedance_id: string | null;
+  kind: "event" | "summary";
+  status: EmailSendStatus;
+  summary_id: string | null;
+  attempts: Generated<number>;
+  last_error: string | null;
+  recipients: ColumnType<string[], string[] | undefined, string[]>;
+  message_id: string | null;
+  created_at: CreatedAt;
+  sent_at: Timestamp | null;
+}
+
+export interface AlertTables {
+  alert_rule: AlertRuleTable;
+  exceedance: ExceedanceTable;
+  exceedance_audit: ExceedanceAuditTable;
+  notification: NotificationTable;
+  email_send: EmailSendTable;
 }

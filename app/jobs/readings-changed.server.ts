@@ -3,6 +3,7 @@
 // (corrections before exceedance detection, detection before summaries) and each must be
 // idempotent: the queue may run the job again after a failure.
 import { applyCorrectionsStep } from "./apply-corrections.server.ts";
+import { detectExceedancesStep } from "./detect-exceedances.server.ts";
 
 export type ReadingsChange = { siteId: string; fromMs: number; toMs: number; reason: "ingest" | "recompute" | "correction" | "manual" };
 
@@ -12,6 +13,8 @@ export type ReadingsChangedStep = { name: string; run: (change: ReadingsChange) 
 export const READINGS_CHANGED_STEPS: ReadingsChangedStep[] = [
   // Keep first: approved corrections are applied before anything reads the readings.
   applyCorrectionsStep,
+  // After corrections, before summaries: alert rules over the corrected readings (events, notifications, e-mail).
+  detectExceedancesStep,
 ];
 
 export async function runReadingsChanged(change: ReadingsChange) {

@@ -4,6 +4,7 @@ import * as m0002 from "./0002_ingest.ts";
 import * as m0003 from "./0003_lab_samples.ts";
 import * as m0004 from "./0004_site_thresholds.ts";
 import * as m0005 from "./0005_reading_corrections.ts";
+import * as m0006 from "./0006_alerts.ts";
 import * as m0007 from "./0007_field_visits.ts";
 
 // Every migration, in order. Add a new file here when you add one to this folder (a test checks
@@ -14,5 +15,6 @@ export const migrations: Record<string, Migration> = {
   "0003_lab_samples": m0003,
   "0004_site_thresholds": m0004,
   "0005_reading_corrections": m0005,
+  "0006_alerts": m0006,
   "0007_field_visits": m0007,
 };
