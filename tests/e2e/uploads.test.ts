@@ -105,6 +105,48 @@ describe("uploading logger files", () => {
     expect(consoleErrors).toEqual([]);
   });
 
+  it("a file that fails on the way stays in the list with “Try again” until it goes through", async () => {
+    const page = await browser.page();
+    await asTamsin(page);
+    // The first presign meets storage that is down (the API's 503); the first PUT loses its connection.
+    let presigns = 0;
+    let puts = 0;
+    await page.route("**/api/uploads", async (route) => {
+      if (route.request().method() === "POST" && (route.request().postData() ?? "").includes("presign") && presigns++ === 0) {
+        await route.fulfill({
+          status: 503,
+          contentType: "application/json",
+          body: JSON.stringify({ ok: false, retryable: true, errors: { file: ["File storage is not answering just now. Nothing was lost: try again in a minute."] } }),
+        });
+        return;
+      }
+      await route.continue();
+    });
+    await page.route(/\/uploads\/[0-9a-f-]{36}\//, async (route) => {
+      if (route.request().method() === "PUT" && puts++ === 0) await route.abort("connectionreset");
+      else await route.continue();
+    });
+
+    // Same layout as the first test's files: its saved profile is picked up (tests in a file run in order).
+    const file = { name: "RQ-4101_2019-07-round.csv", mimeType: "text/csv", buffer: loggerFile("2019-07-01T00:00:00Z", 24, 15, 700) };
+    await page.getByTestId("upload-input").setInputFiles([file]);
+    const entry = page.getByTestId("upload-entry");
+    await expect.poll(() => selectedText(entry.getByLabel("Import profile"))).toContain("Quell four-electrode, comma export");
+    await page.getByRole("button", { name: "Upload 1 file" }).click();
+
+    await expect.poll(() => entry.getAttribute("data-phase")).toBe("error");
+    expect(await entry.getByTestId("upload-outcome").textContent()).toContain("File storage is not answering just now");
+    await entry.getByRole("button", { name: "Try again" }).click();
+
+    await expect.poll(() => entry.getByTestId("upload-outcome").textContent()).toContain("The connection to file storage dropped. Nothing is lost");
+    expect(await entry.getAttribute("data-phase")).toBe("error");
+    await entry.getByRole("button", { name: "Try again" }).click();
+
+    await expect.poll(() => entry.getAttribute("data-phase"), { timeout: 90_000, interval: 250 }).toBe("done");
+    expect(await entry.getByTestId("upload-counts").textContent()).toBe("24 readings stored · 0 rows rejected · 0 already stored (skipped)");
+    expect(puts).toBe(2);
+  });
+
   it("a file of a new layout gets its profile through “Map the columns”, where dates that read either way need an answer", async () => {
     const page = await browser.page();
     await asTamsin(page);

@@ -172,6 +172,11 @@ export function UploadQueue({
       patch(key, { phase: "blocked", blockedBecause: "The file could not be read. Is it still on this computer?" });
       return;
     }
+    if (!globalThis.crypto?.subtle) {
+      // Browsers offer SHA-256 only on https (or this computer's own address).
+      patch(key, { phase: "blocked", blockedBecause: "This browser checks files only on a secure (https) address. Open Ripplemark over https and add the files again." });
+      return;
+    }
     // One file at a time: hashing holds the whole file in memory.
     hashing.current = hashing.current.then(async () => {
       if (!get(key)) return; // removed meanwhile
