@@ -19,6 +19,15 @@ export default [
     route("import-profiles/new", "routes/import-profiles/profile-new.tsx"),
     route("import-profiles/:profileId", "routes/import-profiles/profile.tsx"),
 
+    // Field visits (technicians record, officers may change) and the review of corrections and
+    // periods of record (officers and admins).
+    route("visits", "routes/visits/visits.tsx"),
+    route("visits/new", "routes/visits/new.tsx"),
+    route("visits/:visitId", "routes/visits/visit.tsx"),
+    route("visits/:visitId/edit", "routes/visits/edit.tsx"),
+    route("corrections", "routes/corrections/corrections.tsx"),
+    route("sites/:siteCode/corrections", "routes/corrections/site.tsx"),
+
     // Administration (admin role only).
     ...prefix("admin", [
       route("people", "routes/admin/people.tsx"),
@@ -44,5 +53,6 @@ export default [
   route("api/uploads", "routes/api/uploads/index.ts"),
   route("api/uploads/:uploadId/errors.csv", "routes/api/uploads/errors-csv.ts"),
   route("api/lab/template.csv", "routes/api/lab/template-csv.ts"),
+  route("api/visits/photos", "routes/api/visits/photos.ts"),
   route("*", "routes/not-found.tsx"),
 ] satisfies RouteConfig;

@@ -8,6 +8,8 @@ export const MAIN_NAV: NavItem[] = [
   { to: "/", label: "Overview", capability: "view-sites", end: true },
   { to: "/uploads", label: "Uploads", capability: "upload-files" },
   { to: "/lab", label: "Lab checks", capability: "enter-lab-results" },
+  { to: "/visits", label: "Field visits", capability: "record-visits" },
+  { to: "/corrections", label: "Corrections", capability: "approve-records" },
 ];
 
 export const ADMIN_NAV: NavItem[] = [

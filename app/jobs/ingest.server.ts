@@ -4,7 +4,6 @@ import { PassThrough, Transform, type Readable } from "node:stream";
 import { pipeline } from "node:stream/promises";
 import Papa from "papaparse";
 import type { PoolClient } from "pg";
-import { sql } from "kysely";
 import { compileProfile, createParsedRow, diagnoseMostlyFailing, isBlankRow, type RowError } from "#app/lib/import/rows.ts";
 import { importProfileSchema, type ImportProfile } from "#app/lib/import/profile.ts";
 import { db } from "#app/utils/db.server.ts";
@@ -420,4 +419,3 @@ export async function runIngestJob(uploadId: string, attempt = 1) {
   }
 }
 
-export { sql };

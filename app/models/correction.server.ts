@@ -277,9 +277,9 @@ function checkOffsets(unit: OffsetUnitName, startOffset: number, endOffset: numb
  * `readings-changed` job (reason "correction") is queued for exactly that range; the periods'
  * grades follow; every change leaves a record_audit row.
  */
-export async function reviewCorrection(actorId: string, correctionId: string, review: CorrectionReview) {
+export async function reviewCorrection(actorId: string, siteId: string, correctionId: string, review: CorrectionReview) {
   return db.transaction().execute(async (trx) => {
-    const c = await trx.selectFrom("correction").selectAll().where("id", "=", correctionId).forUpdate().executeTakeFirst();
+    const c = await trx.selectFrom("correction").selectAll().where("id", "=", correctionId).where("site_id", "=", siteId).forUpdate().executeTakeFirst();
     if (!c) throw new CorrectionRefused("No such correction.", 404);
     const inLocked = await guardLockedPeriods(
       trx,

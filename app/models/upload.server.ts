@@ -1,5 +1,4 @@
 import { randomUUID } from "node:crypto";
-import { sql } from "kysely";
 import { db } from "#app/utils/db.server.ts";
 import { enqueue } from "#app/utils/jobs.server.ts";
 import { headObject, MAX_UPLOAD_BYTES, presignPut, uploadObjectKey } from "#app/utils/storage.server.ts";
