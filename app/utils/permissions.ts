@@ -35,6 +35,7 @@ export const CAPABILITIES = {
   "review-exceedances": REVIEW_ROLES,
   "enter-lab-results": REVIEW_ROLES,
   "manage-alert-rules": REVIEW_ROLES,
+  "approve-records": REVIEW_ROLES,
   "read-summaries": READ_ROLES,
   "administer": ADMIN_ONLY,
 } as const satisfies Record<string, readonly RoleName[]>;

@@ -6,6 +6,7 @@ import { request, signIn, type Jar } from "../support/app.ts";
 import { createPeople, TEST_PASSWORD } from "../support/people.ts";
 import { createFixedRecords, FIXED } from "../support/fixed-records.ts";
 import { createFixedUploadRecords, FIXED_UPLOAD } from "../support/fixed-uploads.ts";
+import { createFixedVisitRecords, FIXED_VISIT } from "../support/fixed-visits.ts";
 import type { RoleName } from "#db/schema.ts";
 
 // The authorisation table: every route in app/routes.ts × every role × signed out. Adding a route
@@ -48,6 +49,13 @@ export const AUTH_TABLE: Row[] = [
   { pattern: "lab/new", get: ["officer", "admin"], post: ["officer", "admin"] },
   { pattern: "lab/:sampleId", path: `lab/${FIXED.labSampleId}`, get: ["officer", "admin"], post: ["officer", "admin"] },
   { pattern: "lab/:sampleId/edit", path: `lab/${FIXED.labSampleId}/edit`, get: ["officer", "admin"], post: ["officer", "admin"] },
+  { pattern: "visits", get: FIELD, post: FIELD },
+  { pattern: "visits/new", get: FIELD, post: FIELD },
+  // The fixed visit was recorded by technician@test.example, who may see and change it.
+  { pattern: "visits/:visitId", path: `visits/${FIXED_VISIT.visitId}`, get: FIELD, post: FIELD },
+  { pattern: "visits/:visitId/edit", path: `visits/${FIXED_VISIT.visitId}/edit`, get: FIELD, post: FIELD },
+  { pattern: "corrections", get: ["officer", "admin"], post: ["officer", "admin"] },
+  { pattern: "sites/:siteCode/corrections", path: "sites/FX-01/corrections", get: ["officer", "admin"], post: ["officer", "admin"] },
   { pattern: "api/health", public: true },
   { pattern: "api/uploads", get: ["technician", "officer", "admin"], post: ["technician", "officer", "admin"], api: true },
   {
@@ -57,6 +65,7 @@ export const AUTH_TABLE: Row[] = [
     skip: "needs an upload; covered in ingest.test.ts (404 for an unknown id after the role check)",
   },
   { pattern: "api/lab/template.csv", get: ["officer", "admin"], post: ["officer", "admin"], api: true },
+  { pattern: "api/visits/photos", get: FIELD, post: FIELD, api: true },
   { pattern: "*", path: "no/such/page", public: true, skip: "catch-all answers 404 to everyone" },
 ];
 
@@ -77,6 +86,7 @@ beforeAll(async () => {
   await createPeople(db);
   await createFixedRecords(db);
   await createFixedUploadRecords(db);
+  await createFixedVisitRecords(db);
   jars = Object.fromEntries(
     await Promise.all(ALL.map(async (r) => [r, await signIn(`${r}@test.example`, TEST_PASSWORD)] as const)),
   ) as Record<RoleName, Jar>;
