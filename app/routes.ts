@@ -12,6 +12,11 @@ export default [
     index("routes/overview.tsx"),
     route("account", "routes/account.tsx"),
 
+    // Site dashboards (every role) and site settings (officers and admins).
+    route("sites/:siteCode", "routes/sites/site.tsx"),
+    route("sites/:siteCode/settings", "routes/sites/settings.tsx"),
+    route("compare", "routes/compare.tsx"),
+
     // Logger file uploads and the import profiles that read them (technicians, officers, admins).
     route("uploads", "routes/uploads/uploads.tsx"),
     route("uploads/:uploadId", "routes/uploads/upload.tsx"),
@@ -52,6 +57,8 @@ export default [
   route("api/health", "routes/api/health.ts"),
   route("api/uploads", "routes/api/uploads/index.ts"),
   route("api/uploads/:uploadId/errors.csv", "routes/api/uploads/errors-csv.ts"),
+  route("api/sites/:siteId/series", "routes/api/sites/series.ts"),
+  route("api/sites/:siteId/export.csv", "routes/api/sites/export-csv.ts"),
   route("api/lab/template.csv", "routes/api/lab/template-csv.ts"),
   route("api/visits/photos", "routes/api/visits/photos.ts"),
   route("*", "routes/not-found.tsx"),

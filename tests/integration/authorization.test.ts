@@ -30,6 +30,9 @@ export const AUTH_TABLE: Row[] = [
   { pattern: "reset-password/:token", path: "reset-password/not-a-real-token", public: true },
   { pattern: "/", get: ALL },
   { pattern: "account", get: ALL, post: ALL },
+  { pattern: "sites/:siteCode", path: "sites/FX-01", get: ALL },
+  { pattern: "sites/:siteCode/settings", path: "sites/FX-01/settings", get: ["officer", "admin"], post: ["officer", "admin"] },
+  { pattern: "compare", path: "compare?sites=FX-01", get: ALL },
   { pattern: "uploads", get: FIELD, post: FIELD },
   // The fixed upload belongs to technician@test.example, so the technician gets 200 here.
   { pattern: "uploads/:uploadId", path: `uploads/${FIXED_UPLOAD.uploadId}`, get: FIELD, post: FIELD },
@@ -63,6 +66,18 @@ export const AUTH_TABLE: Row[] = [
     path: "api/uploads/00000000-0000-4000-8000-000000000000/errors.csv",
     api: true,
     skip: "needs an upload; covered in ingest.test.ts (404 for an unknown id after the role check)",
+  },
+  {
+    pattern: "api/sites/:siteId/series",
+    path: `api/sites/${FIXED.siteId}/series?parameter=sc25&from=2025-01-01T00:00:00Z&to=2025-01-02T00:00:00Z`,
+    get: ALL,
+    api: true,
+  },
+  {
+    pattern: "api/sites/:siteId/export.csv",
+    path: `api/sites/${FIXED.siteId}/export.csv?from=2025-01-01T00:00:00Z&to=2025-01-02T00:00:00Z`,
+    get: ALL,
+    api: true,
   },
   { pattern: "api/lab/template.csv", get: ["officer", "admin"], post: ["officer", "admin"], api: true },
   { pattern: "api/visits/photos", get: FIELD, post: FIELD, api: true },
