@@ -4,7 +4,8 @@ import { createHash, randomUUID } from "node:crypto";
 import { sql, type Kysely } from "kysely";
 import type { DB } from "../schema.ts";
 import { DEMO_PEOPLE } from "./scenario.ts";
-import { DEMO_PROFILES, demoFiles, demoLoggerFile, layoutOf, type DemoLayout } from "./readings.ts";
+import { DEMO_PROFILES, demoEvents, demoFiles, demoLoggerFile, layoutOf, type DemoLayout } from "./readings.ts";
+import { seedDemoVisits } from "./visits.ts";
 
 export type DemoReadingsOptions = { days: number; endMs?: number; log?: (line: string) => void };
 
@@ -36,6 +37,7 @@ export async function seedDemoReadings(db: Kysely<DB>, options: DemoReadingsOpti
   const existing = await db.selectFrom("upload").select((eb) => eb.fn.countAll<number>().as("n")).executeTakeFirstOrThrow();
   if (Number(existing.n) > 0) {
     log("demo readings already present: skipped");
+    await seedDemoVisits(db, demoEvents(endMs), { log });
     return { files: 0, rows: 0 };
   }
   // Loaded lazily: these read the app's environment, which callers set before seeding.
@@ -82,5 +84,7 @@ export async function seedDemoReadings(db: Kysely<DB>, options: DemoReadingsOpti
     rows += n;
   }
   log(`demo readings: ${files.length} logger files, ${rows.toLocaleString("en")} readings`);
+  // The field visits that go with these readings, their proposed corrections and the approvals.
+  await seedDemoVisits(db, events, { log });
   return { files: files.length, rows, events };
 }
