@@ -174,6 +174,11 @@ describe("the profile editor's save", () => {
     expect(row.header_signature).toBe("date/time|cond (us/cm)");
     const audit = await db.selectFrom("audit_event").select(["action", "entity"]).where("entity_id", "=", row.id).execute();
     expect(audit).toEqual([{ action: "create", entity: "import_profile" }]);
+
+    // The list names it with a summary of the columns it reads (PARAMETER_LABELS and the unit).
+    const list = await (await request("/import-profiles", { jar: technician })).text();
+    expect(list).toContain("Quell bridge export");
+    expect(list).toContain("date and time · conductivity (µS/cm)");
   });
 
   it("refuses a name another profile has, whatever its case", async () => {
