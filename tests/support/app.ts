@@ -8,7 +8,8 @@ let handler: ((request: Request) => Promise<Response>) | undefined;
 
 export async function appHandler() {
   if (!handler) {
-    const buildPath = path.resolve(import.meta.dirname, "../../build/server/index.js");
+    // TEST_BUILD_DIR lets a developer test a build kept apart from the working tree's build/.
+    const buildPath = path.resolve(process.env.TEST_BUILD_DIR ?? path.resolve(import.meta.dirname, "../../build"), "server/index.js");
     const build = (await import(pathToFileURL(buildPath).href)) as ServerBuild;
     const h = createRequestHandler(build, "production");
     handler = (request) => h(request);
