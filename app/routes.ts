@@ -33,6 +33,11 @@ export default [
     route("corrections", "routes/corrections/corrections.tsx"),
     route("sites/:siteCode/corrections", "routes/corrections/site.tsx"),
 
+    // Weekly summaries, their printable report, and site reports over any days (officers, managers, admins).
+    route("summaries", "routes/summaries/week.tsx"),
+    route("summaries/sites/:siteCode", "routes/summaries/site.tsx"),
+    route("reports/site", "routes/reports/site.tsx"),
+
     // Administration (admin role only).
     ...prefix("admin", [
       route("people", "routes/admin/people.tsx"),
@@ -63,3 +68,6 @@ export default [
   route("api/visits/photos", "routes/api/visits/photos.ts"),
   route("*", "routes/not-found.tsx"),
 ] satisfies RouteConfig;
+  // The printable weekly report stands outside the app's frame (no navigation on paper).
+  route("summaries/:week/print", "routes/summaries/print.tsx"),
+  route("api/summaries/:week/table.csv", "routes/api/summaries/table-csv.ts"),

@@ -5,6 +5,8 @@ import { getEnv } from "#app/utils/env.server.ts";
 import { runIngestJob } from "#app/jobs/ingest.server.ts";
 import { runRecomputeJob } from "#app/jobs/recompute.server.ts";
 import { runReadingsChanged, type ReadingsChange } from "#app/jobs/readings-changed.server.ts";
+import { runSummariseWeeksJob } from "#app/jobs/weekly-summaries.server.ts";
+import { runWeeklyDigestJob } from "#app/jobs/weekly-digest.server.ts";
 import { ALERT_TASKS } from "#app/jobs/alert-tasks.server.ts";
 
 const tasks: TaskList = {
@@ -20,13 +22,23 @@ const tasks: TaskList = {
     const { siteId, settingsId } = payload as { siteId: string; settingsId: number };
     await runRecomputeJob(siteId, settingsId);
   },
+  "summarise-weeks": async (payload) => {
+    await runSummariseWeeksJob(payload);
+  },
+  "weekly-digest": async (payload) => {
+    await runWeeklyDigestJob(payload);
+  },
 };
+
+// Recurring jobs (graphile-worker crontab; times are UTC): the weekly digest on Monday morning.
+const crontab = ["0 7 * * 1 weekly-digest"].join("\n");
 
 const env = getEnv();
 const runner = await run({
   connectionString: env.DATABASE_URL,
   concurrency: Number(process.env.WORKER_CONCURRENCY ?? 2),
   taskList: tasks,
+  crontab,
   noHandleSignals: false,
   pollInterval: 1000,
 });

@@ -109,7 +109,7 @@ export interface AuditEventTable {
   reason: string | null;
 }
 
-export interface DB extends IngestTables, LabTables, ThresholdTables, VisitTables, AlertTables {
+export interface DB extends IngestTables, LabTables, ThresholdTables, AlertTables, SummaryTables, VisitTables {
   role: RoleTable;
   person: PersonTable;
   session: SessionTable;
@@ -480,4 +480,55 @@ export interface AlertTables {
   exceedance_audit: ExceedanceAuditTable;
   notification: NotificationTable;
   email_send: EmailSendTable;
+}
+
+// ---- weekly summaries and digest deliveries (0008) ----
+export type ThresholdShare = { parameter: ThresholdParameterName; bound: "upper" | "lower"; value: number; share: number | null };
+
+export interface WeeklySummaryTable {
+  site_id: string;
+  /** The local Monday starting the ISO week. Select it as `week_start::text` ("YYYY-MM-DD"): pg turns a bare date into a Date at local midnight. */
+  week_start: ColumnType<string, string, string>;
+  iso_year: number;
+  iso_week: number;
+  starts_at: Timestamp;
+  ends_at: Timestamp;
+  readings: Generated<number>;
+  readings_excluded: Generated<number>;
+  readings_expected: number | null;
+  completeness: number | null;
+  sc25_count: Generated<number>;
+  sc25_min: number | null;
+  sc25_mean: number | null;
+  sc25_median: number | null;
+  sc25_p95: number | null;
+  sc25_max: number | null;
+  tds_count: Generated<number>;
+  tds_min: number | null;
+  tds_mean: number | null;
+  tds_median: number | null;
+  tds_p95: number | null;
+  tds_max: number | null;
+  temperature_mean: number | null;
+  thresholds: ColumnType<ThresholdShare[], string | undefined, string>;
+  sc25_above_share: number | null;
+  daily_sc25_medians: ColumnType<(number | null)[], string | undefined, string>;
+  events: ColumnType<Record<string, number>, string | undefined, string>;
+  events_total: Generated<number>;
+  grade: string | null;
+  approved: boolean | null;
+  computed_at: CreatedAt;
+}
+
+export interface WeeklyDigestDeliveryTable {
+  person_id: string;
+  week_start: ColumnType<string, string, string>;
+  claimed_at: CreatedAt;
+  sent_at: Timestamp | null;
+  message_id: string | null;
+}
+
+export interface SummaryTables {
+  weekly_summary: WeeklySummaryTable;
+  weekly_digest_delivery: WeeklyDigestDeliveryTable;
 }

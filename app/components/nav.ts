@@ -7,6 +7,7 @@ export type NavItem = { to: string; label: string; capability: Capability; end?:
 export const MAIN_NAV: NavItem[] = [
   { to: "/", label: "Overview", capability: "view-sites", end: true },
   { to: "/compare", label: "Compare", capability: "view-sites" },
+  { to: "/summaries", label: "Weekly summaries", capability: "read-summaries" },
   { to: "/uploads", label: "Uploads", capability: "upload-files" },
   { to: "/lab", label: "Lab checks", capability: "enter-lab-results" },
   { to: "/visits", label: "Field visits", capability: "record-visits" },

@@ -4,6 +4,7 @@
 // idempotent: the queue may run the job again after a failure.
 import { applyCorrectionsStep } from "./apply-corrections.server.ts";
 import { detectExceedancesStep } from "./detect-exceedances.server.ts";
+import { WEEKLY_SUMMARIES_STEP } from "./weekly-summaries.server.ts";
 
 export type ReadingsChange = { siteId: string; fromMs: number; toMs: number; reason: "ingest" | "recompute" | "correction" | "manual" };
 
@@ -15,6 +16,8 @@ export const READINGS_CHANGED_STEPS: ReadingsChangedStep[] = [
   applyCorrectionsStep,
   // After corrections, before summaries: alert rules over the corrected readings (events, notifications, e-mail).
   detectExceedancesStep,
+  // Keep last: queues the recomputation of the affected weeks' summaries from the final readings and events.
+  WEEKLY_SUMMARIES_STEP,
 ];
 
 export async function runReadingsChanged(change: ReadingsChange) {

@@ -26,6 +26,8 @@ const schema = z.object({
   // The SMTP fake's HTTP API; when set, admins can read captured mail in the app's outbox page.
   MAILBOX_URL: z.string().url().optional(),
   RUN_WORKER: z.stringbool().default(true),
+  // The organisation's name on printed reports and in the weekly digest.
+  ORG_NAME: z.string().trim().min(1).default("Marrowby Water Cooperative"),
 });
 
 export type Env = z.infer<typeof schema>;

@@ -5,7 +5,7 @@ import { db } from "./db.server.ts";
 // The job queue is graphile-worker: jobs live in PostgreSQL (schema graphile_worker), so a job can
 // be enqueued in the same transaction as the change that needs it, and more workers on more
 // machines simply take jobs from the same database.
-export type JobName = "ingest-upload" | "recompute-site" | "readings-changed" | "send-alert-email" | "evaluate-alert-rule";
+export type JobName = "ingest-upload" | "recompute-site" | "readings-changed" | "summarise-weeks" | "weekly-digest" | "send-alert-email" | "evaluate-alert-rule";
 
 export type JobPayloads = {
   "ingest-upload": { uploadId: string };
@@ -15,6 +15,10 @@ export type JobPayloads = {
   "send-alert-email": import("#app/jobs/alert-email.server.ts").AlertEmailPayload;
   /** Run one alert rule over the whole record of every site it covers (after the rule is created or changed). */
   "evaluate-alert-rule": { ruleId: string };
+  /** Recompute cached weekly summaries of one site, Mondays fromWeek…toWeek ("YYYY-MM-DD", both included). */
+  "summarise-weeks": { siteId: string; fromWeek: string; toWeek: string };
+  /** Send the weekly digest of `week` (a Monday; default the last complete week). */
+  "weekly-digest": { week?: string; requestedBy?: string };
 };
 
 export async function enqueue<N extends JobName>(

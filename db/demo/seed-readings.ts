@@ -38,6 +38,9 @@ export async function seedDemoReadings(db: Kysely<DB>, options: DemoReadingsOpti
   if (Number(existing.n) > 0) {
     log("demo readings already present: skipped");
     await seedDemoVisits(db, demoEvents(endMs), { log });
+    // A database seeded before the weekly summaries existed gets them now (once).
+    const cached = await db.selectFrom("weekly_summary").select("site_id").limit(1).executeTakeFirst();
+    if (!cached) await rebuildDemoSummaries(log);
     return { files: 0, rows: 0 };
   }
   // Loaded lazily: these read the app's environment, which callers set before seeding.
@@ -86,5 +89,13 @@ export async function seedDemoReadings(db: Kysely<DB>, options: DemoReadingsOpti
   log(`demo readings: ${files.length} logger files, ${rows.toLocaleString("en")} readings`);
   // The field visits that go with these readings, their proposed corrections and the approvals.
   await seedDemoVisits(db, events, { log });
+  // The weekly summaries of the whole demo record (after detection, so they count its events).
+  await rebuildDemoSummaries(log);
   return { files: files.length, rows, events };
+}
+
+async function rebuildDemoSummaries(log: (line: string) => void) {
+  const { rebuildAllSummaries } = await import("#app/models/weekly-summary.server.ts");
+  const r = await rebuildAllSummaries();
+  log(`demo weekly summaries: ${r.weeks} site-weeks in ${r.seconds.toFixed(1)} s`);
 }

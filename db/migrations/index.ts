@@ -6,6 +6,7 @@ import * as m0004 from "./0004_site_thresholds.ts";
 import * as m0005 from "./0005_reading_corrections.ts";
 import * as m0006 from "./0006_alerts.ts";
 import * as m0007 from "./0007_field_visits.ts";
+import * as m0008 from "./0008_weekly_summaries.ts";
 
 // Every migration, in order. Add a new file here when you add one to this folder (a test checks
 // that the folder and this list agree).
@@ -17,4 +18,5 @@ export const migrations: Record<string, Migration> = {
   "0005_reading_corrections": m0005,
   "0006_alerts": m0006,
   "0007_field_visits": m0007,
+  "0008_weekly_summaries": m0008,
 };

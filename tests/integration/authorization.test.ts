@@ -59,6 +59,10 @@ export const AUTH_TABLE: Row[] = [
   { pattern: "visits/:visitId/edit", path: `visits/${FIXED_VISIT.visitId}/edit`, get: FIELD, post: FIELD },
   { pattern: "corrections", get: ["officer", "admin"], post: ["officer", "admin"] },
   { pattern: "sites/:siteCode/corrections", path: "sites/FX-01/corrections", get: ["officer", "admin"], post: ["officer", "admin"] },
+  { pattern: "summaries", get: ["officer", "manager", "admin"], post: ["admin"] },
+  { pattern: "summaries/sites/:siteCode", path: "summaries/sites/FX-01", get: ["officer", "manager", "admin"] },
+  { pattern: "summaries/:week/print", path: "summaries/2025-W11/print", get: ["officer", "manager", "admin"] },
+  { pattern: "reports/site", path: "reports/site?site=FX-01&from=2025-03-10&to=2025-03-16", get: ["officer", "manager", "admin"] },
   { pattern: "api/health", public: true },
   { pattern: "api/uploads", get: ["technician", "officer", "admin"], post: ["technician", "officer", "admin"], api: true },
   {
@@ -81,6 +85,7 @@ export const AUTH_TABLE: Row[] = [
   },
   { pattern: "api/lab/template.csv", get: ["officer", "admin"], post: ["officer", "admin"], api: true },
   { pattern: "api/visits/photos", get: FIELD, post: FIELD, api: true },
+  { pattern: "api/summaries/:week/table.csv", path: "api/summaries/2025-W11/table.csv", get: ["officer", "manager", "admin"], api: true },
   { pattern: "*", path: "no/such/page", public: true, skip: "catch-all answers 404 to everyone" },
 ];
 

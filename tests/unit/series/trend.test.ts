@@ -4,7 +4,7 @@ import { erfc, formatPValue, formatSlope, mannKendall, normalCdf, senSlope, week
 
 // The reference normal distribution comes from jStat (a general-purpose statistics package on npm),
 // independent of the Numerical Recipes fit in trend.ts.
-const { jStat } = jstatModule as unknown as { jStat: { normal: { cdf: (x: number, mean: number, sd: number) => number } } };
+const { jStat } = jstatModule;
 const jstatPhi = (z: number) => jStat.normal.cdf(z, 0, 1);
 
 describe("normalCdf", () => {
