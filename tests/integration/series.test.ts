@@ -79,6 +79,8 @@ beforeAll(async () => {
   otherSiteId = b.siteId;
   await insertReadings(b.siteId, b.loggerId, b.uploadId, b.settingsId, SLOTS.slice(0, 96));
   await db.insertInto("site_assignment").values({ person_id: technicianId, site_id: otherSiteId }).execute();
+  // A field-visit correction of −12.5 µS/cm on slot 3 (a negative number must stay a plain number in the export).
+  await db.updateTable("readings").set({ correction_us_cm: -12.5 }).where("site_id", "=", siteId).where("time", "=", new Date(slotTime(3))).execute();
   jars = {
     officer: await signIn("officer@test.example", TEST_PASSWORD),
     technician: await signIn("technician@test.example", TEST_PASSWORD),
@@ -260,17 +262,26 @@ describe("CSV export", () => {
     const first = data[0].split(",");
     expect(first[header.indexOf("specific_conductance_us_cm")]).toBe("500");
     expect(first[header.indexOf("logger")]).toBe("SR1-L1");
+    expect(first[header.indexOf("time_local")]).toBe("2025-06-01T01:00:00");
+    expect(first[header.indexOf("correction_us_cm")]).toBe("");
+    expect(first).toHaveLength(header.length);
+    expect(data[3].split(",")[header.indexOf("correction_us_cm")]).toBe("-12.5");
   });
 
-  it("pages through the primary key without losing or repeating a reading", async () => {
+  it("pages through the time windows without losing or repeating a reading", async () => {
+    // Pages of about 1,000 readings at 15 minutes: windows of 1,000 × 15 min ≈ 10.4 days.
     const seen: string[] = [];
-    for await (const page of exportPages(siteId, T0, slotTime(DAYS * 96), "Europe/London", 1000)) {
+    let pages = 0;
+    for await (const page of exportPages(siteId, T0, slotTime(DAYS * 96), "Europe/London", { loggingIntervalS: 900, rowsPerPage: 1000 })) {
+      pages++;
       expect(page.length).toBeLessThanOrEqual(1000);
-      seen.push(...page.map((r) => r.time_utc));
+      seen.push(...page.map((r) => r.times.split(",")[0]));
     }
+    expect(pages).toBe(6);
     expect(seen).toHaveLength(SLOTS.length);
     expect(new Set(seen).size).toBe(SLOTS.length);
     expect([...seen].sort()).toEqual(seen);
+    expect(seen[0]).toBe("2025-06-01T00:00:00Z");
   });
 
   it("is refused signed out (401) and for a missing range (400)", async () => {

@@ -4,14 +4,14 @@ import type { Route } from "./+types/export-csv";
 import { csvSafeCell, toCsvLine } from "#app/lib/import/csv.ts";
 import { MAX_RANGE_MS, parseInstant } from "#app/lib/series/ranges.ts";
 import { describeCompensation } from "#app/jobs/derive.server.ts";
-import { exportPages, settingsSnapshots } from "#app/models/series.server.ts";
+import { deploymentsOverlapping, exportPages, loggingIntervalOf, settingsSnapshots } from "#app/models/series.server.ts";
 import { findSite } from "#app/models/site.server.ts";
 import { requireUser } from "#app/utils/auth.server.ts";
 import { ANY_ROLE } from "#app/utils/permissions.ts";
 
 // GET /api/sites/:siteId/export.csv?from=…&to=… — every reading of the range at full resolution,
-// raw and derived, streamed page by page (keyset pages of the primary key) so a site-year never sits
-// in memory. A few "#" lines name the site, the range, the units and the compensation method of
+// raw and derived, streamed page by page (consecutive time windows of the primary key) so a
+// site-year never sits in memory. A few "#" lines name the site, the range, the units and the compensation method of
 // each settings snapshot; then one header row and one row per reading. Every text cell goes through
 // csvSafeCell, so a value that looks like a spreadsheet formula is neutralised.
 export const EXPORT_COLUMNS = [
@@ -60,7 +60,8 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   ].map((l) => csvSafeCell(l));
 
   const encoder = new TextEncoder();
-  const pages = exportPages(site.id, fromMs, toMs, site.time_zone);
+  const loggingIntervalS = loggingIntervalOf(await deploymentsOverlapping(site.id, fromMs, toMs));
+  const pages = exportPages(site.id, fromMs, toMs, site.time_zone, { loggingIntervalS });
   const stream = new ReadableStream<Uint8Array>({
     start(controller) {
       controller.enqueue(encoder.encode("\uFEFF" + preamble.join("\r\n") + "\r\n" + toCsvLine(EXPORT_COLUMNS) + "\r\n"));
@@ -74,27 +75,9 @@ export async function loader({ request, params }: Route.LoaderArgs) {
         }
         let chunk = "";
         for (const r of next.value) {
-          chunk +=
-            toCsvLine(
-              [
-                r.time_utc,
-                r.time_local,
-                r.serial ?? "",
-                r.conductivity ?? "",
-                r.logger_sc ?? "",
-                r.temperature ?? "",
-                r.ph ?? "",
-                r.depth ?? "",
-                r.battery ?? "",
-                r.sc25 ?? "",
-                r.sc25_uncorrected ?? "",
-                r.correction ?? "",
-                r.tds ?? "",
-                r.salinity ?? "",
-                r.settings_id ?? "",
-                r.quality_flag ?? "",
-              ].map(csvSafeCell),
-            ) + "\r\n";
+          // Times and numbers come ready from SQL (see ExportRow); the two text cells are neutralised
+          // against formulas and quoted as needed.
+          chunk += `${r.times},${toCsvLine([csvSafeCell(r.serial ?? "")])},${r.numbers},${toCsvLine([csvSafeCell(r.quality_flag ?? "")])}\r\n`;
         }
         controller.enqueue(encoder.encode(chunk));
       } catch (error) {

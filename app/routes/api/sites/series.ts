@@ -4,6 +4,7 @@ import type { Route } from "./+types/series";
 import { MAX_POINTS } from "#app/lib/series/bucketing.ts";
 import { SERIES_PARAMETERS } from "#app/lib/series/parameters.ts";
 import { MAX_RANGE_MS } from "#app/lib/series/ranges.ts";
+import { expectedReadings } from "#app/lib/series/statistics.ts";
 import { deploymentsOverlapping, loadSeries, loggingIntervalOf } from "#app/models/series.server.ts";
 import { findSite } from "#app/models/site.server.ts";
 import { requireUser } from "#app/utils/auth.server.ts";
@@ -43,6 +44,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     toMs,
     maxPoints: Math.min(MAX_POINTS, parsed.data.points),
     loggingIntervalS: loggingIntervalOf(deployments),
+    expectedReadings: expectedReadings(deployments, fromMs, toMs),
   });
   return Response.json(series, { headers: { "Cache-Control": "private, no-store" } });
 }
