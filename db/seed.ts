@@ -7,7 +7,9 @@ import type { DB } from "./schema.ts";
 import { DEMO_ASSIGNMENTS, DEMO_LOGGERS, DEMO_PEOPLE, DEMO_SITES } from "./demo/scenario.ts";
 import { demoEvents } from "./demo/readings.ts";
 import { seedDemoReadings } from "./demo/seed-readings.ts";
+import { seedDemoLabSamples } from "./demo/lab-samples.ts";
 import { hashPassword } from "#app/utils/password.server.ts";
+import { seedDefaultRules } from "#app/models/default-rules.server.ts";
 
 export type SeedOptions = {
   /** Days of demo readings before `endMs` (default a year); 0 loads none. */
@@ -93,8 +95,12 @@ export async function seedDemo(db: Kysely<DB>, options: SeedOptions = {}) {
       }
     }
   });
+  // The alert rules Ripplemark starts with (matched by key: an officer's changes are kept).
+  await seedDefaultRules(db);
   if ((options.readingsDays ?? 365) > 0) {
     await seedDemoReadings(db, { days: options.readingsDays ?? 365, endMs, log: options.log });
+    const lab = await seedDemoLabSamples(db, endMs, options.readingsDays ?? 365);
+    if (lab > 0) options.log?.(`demo lab samples: ${lab}`);
   }
 }
 
