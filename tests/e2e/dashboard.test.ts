@@ -103,6 +103,7 @@ describe("site dashboards", () => {
     await page.getByRole("link", { name: "Last 30 days" }).click();
     await expect.poll(() => resolution.textContent(), { timeout: 20_000 }).toMatch(/every reading \(1,3\d\d\)/);
     const zoomCall = page.waitForResponse((r) => /\/api\/sites\/[^/]+\/series\?/.test(r.url()) && r.status() === 200);
+    await page.getByTestId("site-charts").scrollIntoViewIfNeeded();
     const box = (await page.getByTestId("site-charts").boundingBox())!;
     await page.mouse.move(box.x + box.width / 2, box.y + 160);
     for (let i = 0; i < 6; i++) await page.mouse.wheel(0, -240);
@@ -111,6 +112,17 @@ describe("site dashboards", () => {
     expect(zoomSpan).toBeLessThan(30 * 86_400_000 * 0.9);
     await expect.poll(() => resolution.textContent(), { timeout: 20_000 }).toMatch(/^Zoomed to/);
     expect(await page.evaluate(() => (window as unknown as { __rmMarker?: string }).__rmMarker)).toBe("still here");
+
+    // The same from the keyboard: back to the whole range, then "Zoom in" halves the window around
+    // its middle: 15 of the 30 days.
+    await page.getByRole("button", { name: "Whole range" }).click();
+    await expect.poll(() => resolution.textContent(), { timeout: 20_000 }).not.toMatch(/^Zoomed to/);
+    const keyZoomCall = page.waitForResponse((r) => /\/api\/sites\/[^/]+\/series\?/.test(r.url()) && r.status() === 200);
+    await page.getByRole("button", { name: "Zoom in" }).focus();
+    await page.keyboard.press("Enter");
+    const keyZoomed = new URL((await keyZoomCall).url());
+    const keySpan = Date.parse(keyZoomed.searchParams.get("to")!) - Date.parse(keyZoomed.searchParams.get("from")!);
+    expect(keySpan / 86_400_000).toBeCloseTo(15, 1);
 
     expect(problems).toEqual([]);
   });

@@ -1,8 +1,10 @@
 import { useMemo, useRef } from "react";
+import type ReactEChartsCoreType from "echarts-for-react/esm/core";
 import { formatValue, PARAMETER_INFO, parameterLabelWithUnit, type SeriesParameter } from "#app/lib/series/parameters.ts";
 import { echarts, ReactEChartsCore } from "./echarts.ts";
 import { COMPARE_LOOKS, MARK } from "./palette.ts";
 import { axisTimeLabel, fullTime } from "./time-format.ts";
+import { ZoomControls } from "./zoom-controls.tsx";
 import { describeResolution, useZoomableSeries, type Range, type SeriesRequest } from "./use-series.ts";
 
 // One parameter at up to six sites on one time axis, each site with its own colour, line pattern
@@ -19,6 +21,7 @@ type Props = {
 export function CompareChart({ sites, parameter, range, timeZone, describedBy }: Props) {
   const requests: SeriesRequest[] = useMemo(() => sites.map((s) => ({ key: s.code, siteId: s.id, parameter })), [sites, parameter]);
   const series = useZoomableSeries(requests, range);
+  const chartRef = useRef<ReactEChartsCoreType | null>(null);
   const onZoomRef = useRef(series.onZoom);
   onZoomRef.current = series.onZoom;
   const span = range.toMs - range.fromMs;
@@ -85,7 +88,8 @@ export function CompareChart({ sites, parameter, range, timeZone, describedBy }:
   );
 
   return (
-    <div>
+    <div className="space-y-2">
+      <ZoomControls chartRef={chartRef} label="Zoom and pan the chart" />
       <div
         role="img"
         aria-label={`${label} at ${sites.map((s) => s.code).join(", ")} from ${fullTime(range.fromMs, timeZone)} to ${fullTime(range.toMs, timeZone)}. The table gives the figures.`}
@@ -95,7 +99,7 @@ export function CompareChart({ sites, parameter, range, timeZone, describedBy }:
         data-state={series.status}
         className="rounded-lg border border-ink-100 bg-white p-2"
       >
-        <ReactEChartsCore key={`${range.fromMs}-${range.toMs}-${parameter}`} echarts={echarts} option={option} style={{ height: 460, width: "100%" }} onEvents={onEvents} />
+        <ReactEChartsCore ref={chartRef} key={`${range.fromMs}-${range.toMs}-${parameter}`} echarts={echarts} option={option} style={{ height: 460, width: "100%" }} onEvents={onEvents} />
       </div>
       <p className="mt-2 text-sm text-ink-700" aria-live="polite">
         {series.status === "error" ? (

@@ -1,10 +1,13 @@
 import { useMemo, useRef } from "react";
+import type ReactEChartsCoreType from "echarts-for-react/esm/core";
 import type { SeriesPoint } from "#app/lib/series/bucketing.ts";
 import { exceedancePeriods } from "#app/lib/series/exceedance.ts";
+import { GRADE_LABELS, type Grade } from "#app/lib/quality/grades.ts";
 import { formatValue, PARAMETER_INFO, parameterLabel, type DisplayThreshold, type SeriesParameter } from "#app/lib/series/parameters.ts";
 import { echarts, ReactEChartsCore } from "./echarts.ts";
 import { MARK, PARAMETER_LOOK } from "./palette.ts";
 import { axisTimeLabel, fullTime } from "./time-format.ts";
+import { ZoomControls } from "./zoom-controls.tsx";
 import { describeResolution, useZoomableSeries, type Range, type SeriesRequest } from "./use-series.ts";
 
 // A site's time-series charts: one echarts instance with a grid (panel) per parameter, all sharing
@@ -13,6 +16,9 @@ import { describeResolution, useZoomableSeries, type Range, type SeriesRequest }
 // display thresholds are drawn as lines and the shown periods beyond them are shaded.
 
 export type LabPoint = { atMs: number; measuredEcUsPerCm: number | null; calculatedEcUsPerCm: number | null; reference: string | null };
+
+/** A period of record between two field visits with its grade (app/lib/quality/grades.ts), for the band under the time axis. */
+export type GradeSpan = { fromMs: number; toMs: number; grade: Grade | null; approved: boolean };
 
 type Props = {
   siteId: string;
@@ -24,34 +30,39 @@ type Props = {
   referenceC: number;
   timeZone: string;
   describedBy?: string;
+  /** Periods of record and their grades, drawn as a band under the time axis. */
+  grades?: GradeSpan[];
 };
 
 const PANEL_HEIGHT = 150;
 const PANEL_GAP = 62;
 const TOP = 84;
 const SLIDER = 70;
+const BAND = 30;
 
 function panelsOf(parameters: SeriesParameter[]): SeriesParameter[][] {
   const has = new Set(parameters);
   const panels: SeriesParameter[][] = [];
   for (const p of parameters) {
-    if (p === "conductivity" && has.has("sc25")) continue;
-    panels.push(p === "sc25" && has.has("conductivity") ? ["sc25", "conductivity"] : [p]);
+    // Raw conductivity and the uncorrected values share the specific conductance panel.
+    if ((p === "conductivity" || p === "sc25_uncorrected") && has.has("sc25")) continue;
+    panels.push(p === "sc25" ? (["sc25", "sc25_uncorrected", "conductivity"] as const).filter((q) => has.has(q)) : [p]);
   }
   return panels;
 }
 
-export function SiteCharts({ siteId, parameters, range, thresholds, labSamples, referenceC, timeZone, describedBy }: Props) {
+export function SiteCharts({ siteId, parameters, range, thresholds, labSamples, referenceC, timeZone, describedBy, grades }: Props) {
   const requests: SeriesRequest[] = useMemo(() => parameters.map((p) => ({ key: p, siteId, parameter: p })), [siteId, parameters]);
   const series = useZoomableSeries(requests, range);
   const panels = useMemo(() => panelsOf(parameters), [parameters]);
+  const chartRef = useRef<ReactEChartsCoreType | null>(null);
   const onZoomRef = useRef(series.onZoom);
   onZoomRef.current = series.onZoom;
-  const height = TOP + panels.length * (PANEL_HEIGHT + PANEL_GAP) - PANEL_GAP + SLIDER;
+  const height = TOP + panels.length * (PANEL_HEIGHT + PANEL_GAP) - PANEL_GAP + SLIDER + (grades?.length ? BAND : 0);
 
   const option = useMemo(
-    () => buildOption({ panels, shown: series.shown, range, thresholds, labSamples, referenceC, timeZone }),
-    [panels, series.shown, range, thresholds, labSamples, referenceC, timeZone],
+    () => buildOption({ panels, shown: series.shown, range, thresholds, labSamples, referenceC, timeZone, grades }),
+    [panels, series.shown, range, thresholds, labSamples, referenceC, timeZone, grades],
   );
 
   const onEvents = useMemo(
@@ -67,7 +78,8 @@ export function SiteCharts({ siteId, parameters, range, thresholds, labSamples, 
   );
 
   return (
-    <div>
+    <div className="space-y-2">
+      <ZoomControls chartRef={chartRef} label="Zoom and pan the charts" />
       <div
         role="img"
         aria-label={`Charts of ${panels.map((p) => p.map((q) => parameterLabel(q, referenceC)).join(" and ")).join("; ")} from ${fullTime(range.fromMs, timeZone)} to ${fullTime(range.toMs, timeZone)}. The statistics table gives the figures.`}
@@ -78,6 +90,7 @@ export function SiteCharts({ siteId, parameters, range, thresholds, labSamples, 
         className="rounded-lg border border-ink-100 bg-white p-2"
       >
         <ReactEChartsCore
+          ref={chartRef}
           key={`${range.fromMs}-${range.toMs}`}
           echarts={echarts}
           option={option}
@@ -110,13 +123,17 @@ function buildOption(o: {
   labSamples: LabPoint[];
   referenceC: number;
   timeZone: string;
+  grades?: GradeSpan[];
 }) {
   const { panels, shown, range, thresholds, labSamples, referenceC, timeZone } = o;
   const span = range.toMs - range.fromMs;
   const topOf = (i: number) => TOP + i * (PANEL_HEIGHT + PANEL_GAP);
   const grids = panels.map((_, i) => ({ left: 72, right: 28, top: topOf(i), height: PANEL_HEIGHT, containLabel: false }));
   const titles = panels.map((panel, i) => ({
-    text: panel.length > 1 ? `${parameterLabel(panel[0], referenceC)}, with raw conductivity at water temperature` : parameterLabel(panel[0], referenceC),
+    text:
+      panel.length > 1
+        ? `${parameterLabel(panel[0], referenceC)}, with ${panel.slice(1).map((q) => (q === "conductivity" ? "raw conductivity at water temperature" : "the values before corrections")).join(" and ")}`
+        : parameterLabel(panel[0], referenceC),
     left: 72,
     top: topOf(i) - 40,
     textStyle: { fontSize: 14, fontWeight: 600, color: MARK.text, fontFamily: "Source Sans 3, sans-serif" },
@@ -230,7 +247,8 @@ function buildOption(o: {
     });
   }
 
-  const all = panels.map((_, i) => i);
+  if (o.grades?.length) addGradeBand({ grades: o.grades, index: panels.length, top: topOf(panels.length - 1) + PANEL_HEIGHT + 34, range, grids, xAxes, yAxes, titles, seriesList });
+  const all = [...grids.keys()];
   return {
     animation: false,
     textStyle: { fontFamily: "Source Sans 3, sans-serif" },
@@ -258,6 +276,63 @@ function buildOption(o: {
     ],
     series: seriesList,
   };
+}
+
+// Grades from light to dark, each with its word in the band (never colour alone).
+const GRADE_FILL: Record<Grade, string> = {
+  excellent: "#e3f1e7",
+  good: "#c5d1db",
+  fair: "#fbefd5",
+  poor: "#f0c9a8",
+  "beyond-limit": "#b2442e",
+};
+
+/** A thin extra grid under the last time axis with one labelled stretch per period of record. */
+function addGradeBand(b: {
+  grades: GradeSpan[];
+  index: number;
+  top: number;
+  range: Range;
+  grids: object[];
+  xAxes: object[];
+  yAxes: object[];
+  titles: object[];
+  seriesList: object[];
+}) {
+  b.grids.push({ left: 72, right: 28, top: b.top, height: 20, containLabel: false });
+  b.xAxes.push({ type: "time", gridIndex: b.index, min: b.range.fromMs, max: b.range.toMs, show: false });
+  b.yAxes.push({ type: "value", gridIndex: b.index, min: 0, max: 1, show: false });
+  b.titles.push({ text: "Grade", left: 8, top: b.top + 2, textStyle: { fontSize: 12, fontWeight: 600, color: MARK.text, fontFamily: "Source Sans 3, sans-serif" } });
+  b.seriesList.push({
+    id: "grade-band",
+    name: "Data grade of each period between field visits",
+    type: "line",
+    xAxisIndex: b.index,
+    yAxisIndex: b.index,
+    data: [[b.range.fromMs, null]],
+    showSymbol: false,
+    silent: true,
+    animation: false,
+    color: MARK.axis,
+    markArea: {
+      silent: true,
+      animation: false,
+      data: b.grades.map((g) => [
+        {
+          xAxis: Math.max(g.fromMs, b.range.fromMs),
+          itemStyle: { color: g.grade ? GRADE_FILL[g.grade] : "#ffffff", borderColor: MARK.axis, borderWidth: 1 },
+          label: {
+            show: true,
+            position: "inside",
+            color: g.grade === "beyond-limit" ? "#ffffff" : MARK.text,
+            fontSize: 11,
+            formatter: `${g.grade ? GRADE_LABELS[g.grade] : "Not graded"}${g.approved ? " · approved" : ""}`,
+          },
+        },
+        { xAxis: Math.min(g.toMs, b.range.toMs) },
+      ]),
+    },
+  });
 }
 
 /** [lo, hi] widened by 4 % of the span and rounded out to a step of 1, 2 or 5 × 10ⁿ (about five steps). */
