@@ -80,10 +80,10 @@ export default function Overview({ loaderData }: Route.ComponentProps) {
                       to={withParams("", { ...(filter.kind ? { kind: filter.kind } : {}), status: st, sort: filter.sort })}
                       className={`inline-flex items-center gap-2 hover:underline ${STATUS_TEXT_CLASS[st]}`}
                       aria-current={filter.status === st ? "true" : undefined}
-                      aria-label={`${SITE_STATUS_LABELS[st]}: ${counts[st]} ${counts[st] === 1 ? "site" : "sites"}, show only these`}
                     >
                       <StatusMark status={st} />
                       <span className="text-ink-900">{counts[st]}</span>
+                      <span className="sr-only">{counts[st] === 1 ? " site: show only it" : " sites: show only these"}</span>
                     </Link>
                   ) : (
                     <span className="inline-flex items-center gap-2 text-ink-500">

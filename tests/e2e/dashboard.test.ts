@@ -1,4 +1,5 @@
 import { randomUUID } from "node:crypto";
+import axe from "axe-core";
 import pg from "pg";
 import { afterAll, beforeAll, describe, expect, inject, it } from "vitest";
 import { DEMO_PEOPLE } from "#db/demo/scenario.ts";
@@ -139,5 +140,30 @@ describe("site dashboards", () => {
     await expect.poll(() => page.getByTestId("site-charts").getAttribute("data-state"), { timeout: 20_000 }).toBe("ready");
     const overflow = await page.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth);
     expect(overflow).toBeLessThanOrEqual(0);
+  });
+
+  it("has no serious or critical axe-core findings on the overview, a site, its settings and the compare page", async () => {
+    const page = await browser.page();
+    await page.goto("/");
+    if (new URL(page.url()).pathname === "/sign-in") await signInAs(page, officer.email, officer.password);
+    const problems: string[] = [];
+    for (const path of ["/", `/sites/${CODE}?range=month`, `/sites/${CODE}/settings`, `/compare?sites=${CODE}`]) {
+      const res = await page.goto(path);
+      expect(res?.status(), `${path} answers`).toBe(200);
+      await page.waitForLoadState("networkidle");
+      // Evaluated over the DevTools protocol, so the page's Content-Security-Policy does not block it.
+      await page.evaluate(axe.source);
+      const found = await page.evaluate(async () => {
+        const result = await (window as unknown as { axe: typeof axe }).axe.run(document, {
+          resultTypes: ["violations"],
+          runOnly: { type: "tag", values: ["wcag2a", "wcag2aa", "wcag21a", "wcag21aa", "best-practice"] },
+        });
+        return result.violations
+          .filter((v) => v.impact === "serious" || v.impact === "critical")
+          .map((v) => `${v.id}: ${v.help} — ${v.nodes.slice(0, 3).map((n) => n.target.join(" ")).join(" | ")}`);
+      });
+      problems.push(...found.map((f) => `${path}: ${f}`));
+    }
+    expect(problems).toEqual([]);
   });
 });
