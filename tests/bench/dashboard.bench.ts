@@ -158,7 +158,19 @@ async function seed(url: string, endMs: number) {
 const exists = psql("postgres", `select 1 from pg_database where datname = '${DB_NAME}'`) === "1";
 const url = databaseUrl(DB_NAME);
 let rows = exists ? Number(psql(DB_NAME, "select count(*) from readings").trim() || 0) : 0;
-if (!exists || rows < 800_000) {
+let migrated = false;
+if (exists && rows >= 800_000) {
+  // Kept from an earlier run: bring it up to date; if its migration history no longer fits the
+  // folder (a migration was added before one already applied), seed afresh.
+  try {
+    await migrateAll(url);
+    migrated = true;
+    console.log(`reusing ${DB_NAME}: ${rows.toLocaleString("en")} readings`);
+  } catch (e) {
+    console.log(`cannot migrate the kept ${DB_NAME} (${e instanceof Error ? e.message.slice(0, 120) : e}); seeding afresh`);
+  }
+}
+if (!migrated) {
   console.log(`seeding ${DB_NAME} (8 sites × ${YEARS} years of 15-minute readings)…`);
   psql("postgres", `drop database if exists ${DB_NAME} with (force)`);
   psql("postgres", `create database ${DB_NAME}`);
@@ -166,9 +178,6 @@ if (!exists || rows < 800_000) {
   const t0 = performance.now();
   rows = await seed(url, Math.floor(Date.now() / STEP_MS) * STEP_MS);
   console.log(`seeded ${rows.toLocaleString("en")} readings in ${((performance.now() - t0) / 1000).toFixed(1)} s`);
-} else {
-  await migrateAll(url);
-  console.log(`reusing ${DB_NAME}: ${rows.toLocaleString("en")} readings`);
 }
 
 // 2. The production build, in-process, against that database.
