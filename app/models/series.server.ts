@@ -320,6 +320,8 @@ export type ExportRow = {
    */
   numbers: string;
   quality_flag: string | null;
+  /** Inside a period of record an officer approved (record_period.locked, migration 0007). */
+  approved: boolean;
 };
 
 /** The numeric export columns, in file order (after time_utc, time_local, logger). */
@@ -367,11 +369,22 @@ export async function* exportPages(
         .execute()
     ).map((l) => [l.id, l.serial]),
   );
+  // Approved periods of record (few per site): each window tests only the ones overlapping it.
+  const approvedPeriods = await db
+    .selectFrom("record_period")
+    .select(["logger_id", "period_start", "period_end"])
+    .where("site_id", "=", siteId)
+    .where("locked", "=", true)
+    .execute();
   for (let start = fromMs; start < toMs; start += windowMs) {
     const end = Math.min(toMs, start + windowMs);
-    const { rows } = await sql<{ times: string; numbers: string; quality_flag: string | null; logger_id: string }>`
+    const inWindow = approvedPeriods.filter((p) => p.period_start.getTime() < end && p.period_end.getTime() >= start);
+    const approved = inWindow.length
+      ? sql<boolean>`(${sql.join(inWindow.map((p) => sql`(r.logger_id = ${p.logger_id} and r.time >= ${p.period_start} and r.time <= ${p.period_end})`), sql` or `)})`
+      : sql<boolean>`false`;
+    const { rows } = await sql<{ times: string; numbers: string; quality_flag: string | null; logger_id: string; approved: boolean }>`
       select to_char(r.time at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS"Z,"') || to_char(r.time at time zone ${timeZone}, 'YYYY-MM-DD"T"HH24:MI:SS') as times,
-        concat_ws(',', ${numbers}) as numbers, r.quality_flag, r.logger_id
+        concat_ws(',', ${numbers}) as numbers, r.quality_flag, r.logger_id, ${approved} as approved
       from readings r
       where r.site_id = ${siteId} and r.time >= ${new Date(start)} and r.time < ${new Date(end)}
       order by r.time, r.logger_id`.execute(db);
@@ -382,7 +395,7 @@ export async function* exportPages(
         serials.set(r.logger_id, l?.serial ?? "");
       }
     }
-    yield rows.map((r): ExportRow => ({ times: r.times, serial: serials.get(r.logger_id) ?? null, numbers: r.numbers, quality_flag: r.quality_flag }));
+    yield rows.map((r): ExportRow => ({ times: r.times, serial: serials.get(r.logger_id) ?? null, numbers: r.numbers, quality_flag: r.quality_flag, approved: r.approved }));
   }
 }
 

@@ -12,6 +12,7 @@ import { DEMO_PEOPLE, DEMO_SITES } from "./scenario.ts";
 
 const DAY = 86_400_000;
 const ROUTINE_EVERY_DAYS = 42;
+const ARRIVAL_MS = 5 * 60_000;
 
 /** Deterministic small noise in [−1, 1) from a text (no Math.random: the seed is repeatable). */
 function jitter(text: string) {
@@ -66,8 +67,10 @@ export async function seedDemoVisits(db: Kysely<DB>, events: DemoEvents, options
       // The round: 09:30 at the first site, 40 minutes more for each next one (UTC).
       const roundOffset = 9.5 * 3_600_000 + i * 40 * 60_000;
       const special: Planned[] = [];
-      if (site.code === "QT3") special.push({ siteCode: "QT3", loggerId: e.logger_id, atMs: events.foulingStart, kind: "routine" }, { siteCode: "QT3", loggerId: e.logger_id, atMs: events.foulingVisit, kind: "fouling" });
-      if (site.code === "HR5") special.push({ siteCode: "HR5", loggerId: e.logger_id, atMs: events.driftStart, kind: "routine" }, { siteCode: "HR5", loggerId: e.logger_id, atMs: events.driftVisit, kind: "drift" });
+      // Each visit is dated when the technician arrived, five minutes before the sensor was cleaned
+      // or recalibrated (the moment the demo readings change).
+      if (site.code === "QT3") special.push({ siteCode: "QT3", loggerId: e.logger_id, atMs: events.foulingStart - ARRIVAL_MS, kind: "routine" }, { siteCode: "QT3", loggerId: e.logger_id, atMs: events.foulingVisit - ARRIVAL_MS, kind: "fouling" });
+      if (site.code === "HR5") special.push({ siteCode: "HR5", loggerId: e.logger_id, atMs: events.driftStart - ARRIVAL_MS, kind: "routine" }, { siteCode: "HR5", loggerId: e.logger_id, atMs: events.driftVisit - ARRIVAL_MS, kind: "drift" });
       const quiet = special.length ? [special[0].atMs - 10 * DAY, special[1].atMs + 10 * DAY] : null;
       const dayStart = (t: number) => Math.floor(t / DAY) * DAY;
       for (let t = dayStart(last) - 3 * DAY + roundOffset; t > first + DAY; t -= ROUTINE_EVERY_DAYS * DAY) {
@@ -185,7 +188,7 @@ export async function seedDemoVisits(db: Kysely<DB>, events: DemoEvents, options
           .selectAll()
           .where("site_id", "=", qt3.id)
           .where("kind", "=", "fouling")
-          .where("period_end", "=", new Date(events.foulingVisit))
+          .where("period_end", "=", new Date(events.foulingVisit - ARRIVAL_MS))
           .executeTakeFirst()
       : undefined;
     if (qt3 && fouling) {
@@ -197,7 +200,7 @@ export async function seedDemoVisits(db: Kysely<DB>, events: DemoEvents, options
         .insertInto("record_audit")
         .values({ at: approvedAt, person_id: officer, site_id: qt3.id, entity: "correction", entity_id: fouling.id, action: "approve", before: JSON.stringify({ status: "proposed" }), after: JSON.stringify({ status: "approved" }), reason: "Matches the photos of the sensor guard and the jump at cleaning." })
         .execute();
-      const period = await trx.selectFrom("record_period").select("id").where("site_id", "=", qt3.id).where("period_end", "=", new Date(events.foulingVisit)).executeTakeFirst();
+      const period = await trx.selectFrom("record_period").select("id").where("site_id", "=", qt3.id).where("period_end", "=", new Date(events.foulingVisit - ARRIVAL_MS)).executeTakeFirst();
       if (period) {
         await trx.updateTable("record_period").set({ approved_by: officer, approved_at: approvedAt, locked: true }).where("id", "=", period.id).execute();
         await trx

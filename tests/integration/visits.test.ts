@@ -268,6 +268,37 @@ describe("field visits to corrected record", () => {
     expect(visitAudit.after).toEqual({ notes: "Weed on the guard." });
   });
 
+  it("charts read the corrected values, the uncorrected ones on request; the export marks the approved period", async () => {
+    const range = `from=${new Date(A).toISOString()}&to=${new Date(B + 2 * STEP).toISOString()}&points=5000`;
+    const seriesOf = async (parameter: string) => {
+      const res = await request(`/api/sites/${siteId}/series?parameter=${parameter}&${range}`, { jar: officer });
+      expect(res.status).toBe(200);
+      return new Map(((await res.json()) as { points: [number, number | null][] }).points.map(([t, v]) => [t, v]));
+    };
+    const corrected = await seriesOf("sc25");
+    const uncorrected = await seriesOf("sc25_uncorrected");
+    expect(corrected.get(B)).toBeCloseTo(condAt(B) * 1.12, 6); // the 12 % set above, at its full value
+    expect(uncorrected.get(B)).toBeCloseTo(condAt(B), 9);
+    expect(uncorrected.get(MID)).toBeCloseTo(condAt(MID), 9);
+
+    const page = await request("/sites/VT1?uncorrected=1", { jar: officer });
+    expect(page.status).toBe(200);
+    const html = await page.text();
+    expect(html).toContain("Hide the uncorrected values");
+    expect(html).toContain("Corrections and approval");
+
+    const csv = await request(`/api/sites/${siteId}/export.csv?from=${new Date(A).toISOString()}&to=${new Date(B + 2 * STEP).toISOString()}`, { jar: officer });
+    expect(csv.status).toBe(200);
+    const lines = (await csv.text()).replace(/^\uFEFF/, "").split("\r\n").filter(Boolean);
+    const header = lines.find((l) => l.startsWith("time_utc"))!.split(",");
+    const rows = lines.filter((l) => /^\d{4}-/.test(l)).map((l) => l.split(","));
+    const at = (t: number) => rows.find((r) => r[0] === new Date(t).toISOString().replace(".000Z", "Z"))!;
+    expect(at(A)[header.indexOf("approved")]).toBe("yes");
+    expect(at(B)[header.indexOf("approved")]).toBe("yes");
+    expect(at(B + STEP)[header.indexOf("approved")]).toBe(""); // after the second visit: not in an approved period
+    expect(Number(at(B)[header.indexOf("specific_conductance_uncorrected_us_cm")])).toBeCloseTo(condAt(B), 9);
+  });
+
   it("rejecting the correction (with a reason, the period being approved) puts the recorded values back", async () => {
     const c = await theCorrection();
     const res = await request("/sites/VT1/corrections", { jar: officer, form: { intent: "reject", correctionId: c.id, note: "Sensor was replaced, not fouled." } });

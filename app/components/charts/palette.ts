@@ -9,6 +9,7 @@ type Look = { color: string; dash: "solid" | "dashed" | "dotted" | number[]; sym
 
 export const PARAMETER_LOOK: Record<SeriesParameter, Look> = {
   sc25: { color: "#1f6f9f", dash: "solid", symbol: "circle", width: 2 },
+  sc25_uncorrected: { color: "#5b7387", dash: [3, 3], symbol: "emptyCircle", width: 1.5 },
   conductivity: { color: "#b86e00", dash: [6, 4], symbol: "triangle", width: 1.5 },
   temperature: { color: "#b2442e", dash: "solid", symbol: "rect", width: 1.75 },
   tds: { color: "#2f7a4b", dash: [8, 3, 2, 3], symbol: "diamond", width: 1.75 },

@@ -106,7 +106,7 @@ export function proposeCorrections(previous: { id: string; visitedAtMs: number }
       ...base,
       kind: "drift",
       endOffset: correctionPercentFor(check.errorUsPerCm, visit.checks[i].sensorUsPerCm),
-      reason: `Calibration drift: in the ${visit.checks[i].standard === "custom" ? "custom" : visit.checks[i].standard} standard the cleaned sensor read ${check.errorUsPerCm > 0 ? "low" : "high"} by ${Math.abs(check.errorUsPerCm).toFixed(1)} µS/cm (${pct(-check.errorPercent)} off the expected ${check.expectedUsPerCm.toFixed(1)} µS/cm), outside ±${check.allowanceUsPerCm.toFixed(1)} µS/cm.`,
+      reason: `Calibration drift: in the ${visit.checks[i].standard === "custom" ? "custom" : visit.checks[i].standard} standard the cleaned sensor read ${check.errorUsPerCm > 0 ? "low" : "high"} by ${Math.abs(check.errorUsPerCm).toFixed(1)} µS/cm (${Math.abs(check.errorPercent).toFixed(1)} % ${check.errorUsPerCm > 0 ? "below" : "above"} the expected ${check.expectedUsPerCm.toFixed(1)} µS/cm), outside ±${check.allowanceUsPerCm.toFixed(1)} µS/cm.`,
     });
   }
   return out;

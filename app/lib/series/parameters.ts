@@ -3,7 +3,10 @@
 // its column through its own allow-list (app/models/series.server.ts), never by string building.
 
 export const SERIES_PARAMETERS = ["sc25", "conductivity", "temperature", "tds", "salinity", "ph", "depth", "battery"] as const;
-export type SeriesParameter = (typeof SERIES_PARAMETERS)[number];
+/** Series charted only on request: specific conductance before field-visit corrections (0005, 0007). */
+export const OPTIONAL_SERIES_PARAMETERS = ["sc25_uncorrected"] as const;
+export const ALL_SERIES_PARAMETERS = [...SERIES_PARAMETERS, ...OPTIONAL_SERIES_PARAMETERS] as const;
+export type SeriesParameter = (typeof ALL_SERIES_PARAMETERS)[number];
 
 export type ParameterInfo = {
   /** A short label for legends and table rows. */
@@ -19,6 +22,7 @@ export type ParameterInfo = {
 
 export const PARAMETER_INFO: Record<SeriesParameter, ParameterInfo> = {
   sc25: { label: "Specific conductance", unit: "µS/cm", decimals: 0, derived: true, estimate: false },
+  sc25_uncorrected: { label: "Specific conductance, uncorrected", unit: "µS/cm", decimals: 0, derived: true, estimate: false },
   conductivity: { label: "Conductivity at water temperature", unit: "µS/cm", decimals: 0, derived: false, estimate: false },
   temperature: { label: "Water temperature", unit: "°C", decimals: 2, derived: false, estimate: false },
   tds: { label: "TDS estimate", unit: "mg/L", decimals: 0, derived: true, estimate: true },
@@ -34,6 +38,7 @@ export function isSeriesParameter(value: unknown): value is SeriesParameter {
 
 /** "Specific conductance at 25 °C" — the reference temperature is the site's (20 or 25 °C). */
 export function parameterLabel(p: SeriesParameter, referenceC = 25): string {
+  if (p === "sc25_uncorrected") return `Specific conductance at ${referenceC} °C before field-visit corrections`;
   return p === "sc25" ? `Specific conductance at ${referenceC} °C` : PARAMETER_INFO[p].label;
 }
 

@@ -7,6 +7,7 @@ import { StatsTable } from "#app/components/stats-table.tsx";
 import { StatusMark, STATUS_TEXT_CLASS } from "#app/components/status-mark.tsx";
 import { formatAge } from "#app/lib/quality/site-status.ts";
 import { formatValue } from "#app/lib/series/parameters.ts";
+import { gradeBand } from "#app/models/record-period.server.ts";
 import { loadSiteDashboard } from "#app/models/site-dashboard.server.ts";
 import { requireUser } from "#app/utils/auth.server.ts";
 import { ANY_ROLE, REVIEW_ROLES, roleAllowed } from "#app/utils/permissions.ts";
@@ -19,11 +20,18 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const user = await requireUser(request, { roles: ANY_ROLE });
   const page = await loadSiteDashboard(params.siteCode, new URL(request.url).searchParams);
   if (!page) throw data("No such site.", { status: 404 });
-  return { ...page, canEditSettings: roleAllowed(user.role, REVIEW_ROLES), nowMs: Date.now() };
+  // Periods of record with their grades (the band under the charts), and the uncorrected values of
+  // specific conductance beside the corrected ones on request (?uncorrected=1).
+  const url = new URL(request.url);
+  const showUncorrected = url.searchParams.get("uncorrected") === "1";
+  if (showUncorrected) url.searchParams.delete("uncorrected");
+  else url.searchParams.set("uncorrected", "1");
+  const grades = await gradeBand(page.site.id, page.range.fromMs, page.range.toMs);
+  return { ...page, canEditSettings: roleAllowed(user.role, REVIEW_ROLES), nowMs: Date.now(), grades, showUncorrected, uncorrectedToggle: url.pathname + url.search };
 }
 
 export default function SitePage({ loaderData }: Route.ComponentProps) {
-  const { site, latest, status, thresholds, range, stats, charted, labSamples, canEditSettings, nowMs, tdsWarning } = loaderData;
+  const { site, latest, status, thresholds, range, stats, charted, labSamples, canEditSettings, nowMs, tdsWarning, grades, showUncorrected, uncorrectedToggle } = loaderData;
   const exportHref = `/api/sites/${site.id}/export.csv?${new URLSearchParams({ from: new Date(range.fromMs).toISOString(), to: new Date(range.toMs).toISOString() })}`;
   const shownFrom = fullTime(range.fromMs, site.timeZone);
   const shownTo = fullTime(range.toMs, site.timeZone);
@@ -88,10 +96,25 @@ export default function SitePage({ loaderData }: Route.ComponentProps) {
           Showing {shownFrom} to {shownTo}. Zoom with the mouse wheel or by pinching inside a chart, or drag the slider under the charts:
           finer detail is fetched for the zoomed stretch. Shaded stretches are beyond a display threshold.
         </p>
+        {charted.includes("sc25") ? (
+          <p className="text-sm">
+            Specific conductance is shown {showUncorrected ? "with" : "after"} field-visit corrections{showUncorrected ? " and, dashed, the values before them" : ""}.{" "}
+            <Link to={uncorrectedToggle} className="text-lake-700 underline" preventScrollReset>
+              {showUncorrected ? "Hide the uncorrected values" : "Show uncorrected"}
+            </Link>
+            {canEditSettings ? (
+              <>
+                {" · "}
+                <Link to={`/sites/${site.code}/corrections`} className="text-lake-700 underline">Corrections and approval</Link>
+              </>
+            ) : null}
+          </p>
+        ) : null}
         {charted.length ? (
           <SiteCharts
             siteId={site.id}
-            parameters={charted}
+            parameters={showUncorrected && charted.includes("sc25") ? [...charted, "sc25_uncorrected"] : charted}
+            grades={grades}
             range={{ fromMs: range.fromMs, toMs: range.toMs }}
             thresholds={thresholds}
             labSamples={labSamples}

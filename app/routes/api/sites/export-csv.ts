@@ -30,6 +30,7 @@ export const EXPORT_COLUMNS = [
   "tds_estimate_mg_l",
   "salinity_estimate_pss78",
   "settings_snapshot",
+  "approved",
   "quality_flag",
 ] as const;
 
@@ -57,6 +58,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     `# Current settings: ${describeCompensation(site)}; TDS factor ${site.tds_factor}`,
     `# TDS and salinity are screening estimates; accredited laboratories and local regulations govern.`,
     `# quality_flag empty = no flag`,
+    `# approved = yes inside a period of record (between two field visits) an officer has reviewed and approved; empty otherwise`,
   ].map((l) => csvSafeCell(l));
 
   const encoder = new TextEncoder();
@@ -77,7 +79,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
         for (const r of next.value) {
           // Times and numbers come ready from SQL (see ExportRow); the two text cells are neutralised
           // against formulas and quoted as needed.
-          chunk += `${r.times},${toCsvLine([csvSafeCell(r.serial ?? "")])},${r.numbers},${toCsvLine([csvSafeCell(r.quality_flag ?? "")])}\r\n`;
+          chunk += `${r.times},${toCsvLine([csvSafeCell(r.serial ?? "")])},${r.numbers},${r.approved ? "yes" : ""},${toCsvLine([csvSafeCell(r.quality_flag ?? "")])}\r\n`;
         }
         controller.enqueue(encoder.encode(chunk));
       } catch (error) {

@@ -2,7 +2,7 @@ import { data } from "react-router";
 import { z } from "zod";
 import type { Route } from "./+types/series";
 import { MAX_POINTS } from "#app/lib/series/bucketing.ts";
-import { SERIES_PARAMETERS } from "#app/lib/series/parameters.ts";
+import { ALL_SERIES_PARAMETERS } from "#app/lib/series/parameters.ts";
 import { MAX_RANGE_MS } from "#app/lib/series/ranges.ts";
 import { expectedReadings } from "#app/lib/series/statistics.ts";
 import { deploymentsOverlapping, loadSeries, loggingIntervalOf } from "#app/models/series.server.ts";
@@ -15,7 +15,7 @@ import { ANY_ROLE } from "#app/utils/permissions.ts";
 // epoch milliseconds out. Answer: { parameter, unit, from, to, bucketSeconds, readings, gapSeconds,
 // points: [[timeMs, value|null, min?, max?], …] } (see app/lib/series/bucketing.ts).
 const query = z.object({
-  parameter: z.enum(SERIES_PARAMETERS, { error: `parameter must be one of ${SERIES_PARAMETERS.join(", ")}` }),
+  parameter: z.enum(ALL_SERIES_PARAMETERS, { error: `parameter must be one of ${ALL_SERIES_PARAMETERS.join(", ")}` }),
   from: z.iso.datetime({ offset: true, error: "from must be an ISO date-time with a zone, such as 2025-03-01T00:00:00Z" }),
   to: z.iso.datetime({ offset: true, error: "to must be an ISO date-time with a zone, such as 2025-03-08T00:00:00Z" }),
   points: z.coerce.number().int().min(10).max(100_000).default(1500),

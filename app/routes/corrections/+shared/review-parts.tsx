@@ -6,7 +6,7 @@ import { ErrorList, FormErrors } from "#app/components/forms.tsx";
 import { CORRECTION_KINDS, OFFSET_UNITS } from "#app/lib/quality/corrections.ts";
 import { GRADE_DESCRIPTIONS, type Grade } from "#app/lib/quality/grades.ts";
 import { addSchema, adjustSchema, approvePeriodSchema, decideSchema, KIND_LABELS, reopenPeriodSchema, STATUS_LABELS, UNIT_LABELS } from "#app/lib/visits/review-input.ts";
-import { offsetText, signedPercent } from "../../visits/+shared/format.ts";
+import { offsetText } from "../../visits/+shared/format.ts";
 import type { ReviewData } from "./review.server.ts";
 
 // The parts of a site's review page. Each form posts with its own fetcher (the page stays where it
@@ -231,7 +231,7 @@ export function PeriodsTable({ periods, canApprove }: { periods: PeriodView[]; c
               <tr key={p.id} data-testid="period" data-grade={p.grade ?? "none"} data-locked={p.locked ? "yes" : "no"}>
                 <th scope="row" className="border-b border-ink-100 font-normal">{p.from} to {p.to}</th>
                 <td>{p.logger}</td>
-                <td className="text-right tabular-nums">{p.totalPercent === null ? "—" : signedPercent(p.totalPercent, 1).replace(/^\+/, "")}</td>
+                <td className="text-right tabular-nums">{p.totalPercent === null ? "—" : `${p.totalPercent.toLocaleString("en-GB", { minimumFractionDigits: 1, maximumFractionDigits: 1 })} %`}</td>
                 <td><GradeMark grade={p.grade} label={p.gradeLabel} /></td>
                 <td>{p.locked ? <span><span aria-hidden="true">🔒 </span>Approved by {p.approvedBy ?? "someone"}, {p.approvedAt}; locked</span> : "Not approved yet"}</td>
                 {canApprove ? <td><PeriodAction p={p} /></td> : null}
