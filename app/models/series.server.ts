@@ -18,6 +18,7 @@ import { db } from "#app/utils/db.server.ts";
 // come only from this allow-list (column identifiers); every value is a bound parameter.
 const COLUMN: Record<SeriesParameter, string> = {
   sc25: "sc25_us_cm",
+  sc25_uncorrected: "sc25_uncorrected_us_cm",
   conductivity: "conductivity_us_cm",
   temperature: "temperature_c",
   tds: "tds_mg_l",
