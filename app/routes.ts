@@ -38,6 +38,16 @@ export default [
     route("summaries/sites/:siteCode", "routes/summaries/site.tsx"),
     route("reports/site", "routes/reports/site.tsx"),
 
+    // Alert rules (each role sees the rules that tell it; officers and admins change them), the
+    // review of exceedances (officers and admins; others open events they were told about) and
+    // each person's notifications.
+    route("alert-rules", "routes/alert-rules/rules.tsx"),
+    route("alert-rules/new", "routes/alert-rules/new.tsx"),
+    route("alert-rules/:ruleId", "routes/alert-rules/rule.tsx"),
+    route("exceedances", "routes/exceedances/exceedances.tsx"),
+    route("exceedances/:exceedanceId", "routes/exceedances/exceedance.tsx"),
+    route("notifications", "routes/notifications.tsx"),
+
     // Administration (admin role only).
     ...prefix("admin", [
       route("people", "routes/admin/people.tsx"),

@@ -10,6 +10,9 @@ export const MAIN_NAV: NavItem[] = [
   { to: "/summaries", label: "Weekly summaries", capability: "read-summaries" },
   { to: "/uploads", label: "Uploads", capability: "upload-files" },
   { to: "/lab", label: "Lab checks", capability: "enter-lab-results" },
+  { to: "/exceedances", label: "Exceedances", capability: "review-exceedances" },
+  // Every role sees the alert rules that tell it (technicians: sensor checks; managers: the rules naming them).
+  { to: "/alert-rules", label: "Alert rules", capability: "view-sites" },
   { to: "/visits", label: "Field visits", capability: "record-visits" },
   { to: "/corrections", label: "Corrections", capability: "approve-records" },
 ];

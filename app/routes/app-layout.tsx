@@ -2,12 +2,14 @@ import { Form, Link, NavLink, Outlet, useNavigation } from "react-router";
 import type { Route } from "./+types/app-layout";
 import { ADMIN_NAV, MAIN_NAV, type NavItem } from "#app/components/nav.ts";
 import { requireUser } from "#app/utils/auth.server.ts";
+import { unreadCount } from "#app/models/notification.server.ts";
 import { ANY_ROLE, ROLE_LABELS, userCan } from "#app/utils/permissions.ts";
 
 export async function loader({ request }: Route.LoaderArgs) {
   const user = await requireUser(request, { roles: ANY_ROLE });
   // Only what the shell needs: no ids of other records, no e-mail of anyone else.
-  return { user: { name: user.name, role: user.role, email: user.email } };
+  // The unread count is one indexed count (a partial index on unread rows).
+  return { user: { name: user.name, role: user.role, email: user.email }, unread: await unreadCount(user.id) };
 }
 
 function NavItems({ items, role }: { items: NavItem[]; role: Parameters<typeof userCan>[0] }) {
@@ -33,7 +35,7 @@ function NavItems({ items, role }: { items: NavItem[]; role: Parameters<typeof u
 }
 
 export default function AppLayout({ loaderData }: Route.ComponentProps) {
-  const { user } = loaderData;
+  const { user, unread } = loaderData;
   const navigation = useNavigation();
   const showAdmin = userCan(user, "administer");
   return (
@@ -53,6 +55,20 @@ export default function AppLayout({ loaderData }: Route.ComponentProps) {
             </ul>
           </nav>
           <div className="flex items-center gap-3 text-sm">
+            <Link
+              to="/notifications"
+              className="inline-flex items-center gap-1 rounded px-2 py-1 hover:bg-ink-700"
+              aria-label={unread ? `Notifications, ${unread} unread` : "Notifications, none unread"}
+              data-testid="notifications-link"
+            >
+              <svg aria-hidden="true" width="18" height="18" viewBox="0 0 24 24" fill="none" stroke="currentColor" strokeWidth="2" strokeLinecap="round" strokeLinejoin="round">
+                <path d="M6 8a6 6 0 0 1 12 0c0 7 3 9 3 9H3s3-2 3-9" />
+                <path d="M10.3 21a1.94 1.94 0 0 0 3.4 0" />
+              </svg>
+              {unread ? (
+                <span className="rounded-full bg-white px-1.5 text-xs font-bold text-ink-900" data-testid="unread-count">{unread > 99 ? "99+" : unread}</span>
+              ) : null}
+            </Link>
             <Link to="/account" className="hover:underline" data-testid="current-user">
               {user.name} <span className="text-ink-300">· {ROLE_LABELS[user.role]}</span>
             </Link>

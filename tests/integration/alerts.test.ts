@@ -49,6 +49,8 @@ async function eventsOf(ruleId: string) {
 }
 
 const MAILBOX = () => process.env.MAILBOX_URL!;
+/** The SMTP fake's mailbox outlives test runs: this run's messages are told apart by this tag in site codes and rule names. */
+const RUN = Math.random().toString(36).slice(2, 6).toUpperCase();
 
 let people: Awaited<ReturnType<typeof createPeople>>;
 let technicianJar: Jar;
@@ -123,5 +125,237 @@ describe("detection through the upload path", () => {
     const sends = await db.selectFrom("email_send").selectAll().where("rule_id", "=", ruleId).execute();
     expect(sends).toHaveLength(1);
     expect(sends[0].status).toBe("queued");
+  });
+});
+
+describe("e-mail", () => {
+  it("sends one message per new event up to the rule's hourly limit, then one summary of the rest, escaping names", async () => {
+    const code = `M${RUN}`;
+    const { siteId, loggerId } = await createSite(db, { code, name: "Weir <b>&</b> \"Mill\" pool" });
+    const ruleId = await createRule(db, {
+      name: `Spikes & <surges> ${RUN}`,
+      params: { threshold: 1000, clear: 1000, minDurationMin: 0, unit: "µS/cm" },
+      siteIds: [siteId],
+      notifyRoles: ["officer", "manager"],
+      email: true,
+      emailsPerHour: 2,
+    });
+    // Four separate excursions above 1000 µS/cm, an hour apart: four events.
+    const values = Array.from({ length: 20 }, (_, i) => (i % 5 === 2 ? 1300 + i : 500));
+    const range = await insertReadings(db, { siteId, loggerId, startIso: "2025-03-01T00:00:00Z", sc: values });
+    const summary = await detectExceedances({ siteId, ...range, reason: "ingest" }, { sendEmail: true });
+    expect(summary.inserted).toBe(4);
+
+    const sends = await db.selectFrom("email_send").selectAll().where("rule_id", "=", ruleId).orderBy("created_at").execute();
+    expect(sends.map((s) => s.status).sort()).toEqual(["held", "held", "queued", "queued"]);
+    // The summary waits in the queue for the hour since the first counted message to pass.
+    const { rows: summaryJobs } = await sql<{ run_at: Date; max_attempts: number }>`
+      select j.run_at, j.max_attempts from graphile_worker._private_jobs j where j.key = ${`alert-summary:${ruleId}`}`.execute(db);
+    expect(summaryJobs).toHaveLength(1);
+    expect(summaryJobs[0].run_at.getTime() - sends[0].created_at.getTime()).toBeGreaterThan(59 * 60_000);
+
+    for (const s of sends.filter((x) => x.status === "queued")) await runSendAlertEmail({ sendId: s.id });
+    const first = await waitForMessage(MAILBOX(), (m) => m.subject.includes(code) && m.to.includes("officer@test.example"), 10_000);
+    expect(first.to.sort()).toEqual(["manager@test.example", "officer@test.example"]);
+    expect(first.subject).toContain("specific conductance, highest value 1,3");
+    expect(first.text).toContain(`Site: ${code} · Weir <b>&</b> "Mill" pool`);
+    // One reading above, the next back at the clear level 15 minutes later.
+    expect(first.text).toContain("Duration: 15 min");
+    expect(first.text).toMatch(new RegExp(`/exceedances/[0-9a-f-]{36}`));
+    // HTML: names are escaped, never markup.
+    expect(first.html).toContain("Weir &lt;b&gt;&amp;&lt;/b&gt; &quot;Mill&quot; pool");
+    expect(first.html).toContain(`Spikes &amp; &lt;surges&gt; ${RUN}`);
+    expect(first.html).not.toContain("<b>&</b>");
+    expect(first.text).toContain("screening values");
+
+    const single = (await listMessages(MAILBOX())).filter((m) => m.subject.startsWith(`Ripplemark alert: ${code} `));
+    expect(single).toHaveLength(2);
+
+    // Sending the same message again does nothing (the job may run twice).
+    await runSendAlertEmail({ sendId: sends.find((x) => x.status === "queued")!.id });
+    expect((await listMessages(MAILBOX())).filter((m) => m.subject.startsWith(`Ripplemark alert: ${code} `))).toHaveLength(2);
+
+    await runSendAlertEmail({ summaryForRule: ruleId });
+    const digest = await waitForMessage(MAILBOX(), (m) => m.subject.includes("alert summary") && m.subject.includes(RUN), 10_000);
+    expect(digest.subject).toBe(`Ripplemark alert summary: 2 more events for "Spikes & <surges> ${RUN}"`);
+    expect(digest.html).toContain(`Spikes &amp; &lt;surges&gt; ${RUN}`);
+    expect((digest.text ?? "").match(new RegExp(code, "g"))).toHaveLength(2);
+    const after = await db.selectFrom("email_send").select(["status", "kind"]).where("rule_id", "=", ruleId).execute();
+    expect(after.filter((s) => s.kind === "event").map((s) => s.status).sort()).toEqual(["sent", "sent", "summarised", "summarised"]);
+    expect(after.filter((s) => s.kind === "summary").map((s) => s.status)).toEqual(["sent"]);
+  });
+
+  it("does not e-mail about events found in a back-fill (the demo seed, a rule re-checking history)", async () => {
+    const { siteId, loggerId } = await createSite(db, { code: "ALR3" });
+    const ruleId = await createRule(db, { params: { threshold: 1000, clear: 900, minDurationMin: 0 }, siteIds: [siteId], email: true });
+    const range = await insertReadings(db, { siteId, loggerId, startIso: "2025-03-02T00:00:00Z", sc: [500, 1200, 800] });
+    expect((await detectExceedances({ siteId, ...range, reason: "manual" }, { sendEmail: false })).inserted).toBe(1);
+    expect(await db.selectFrom("email_send").select("id").where("rule_id", "=", ruleId).execute()).toEqual([]);
+    // The officer is still told in the app.
+    const [event] = await eventsOf(ruleId);
+    expect(await db.selectFrom("notification").select("person_id").where("exceedance_id", "=", event.id).execute()).toEqual([{ person_id: people.officer.id }]);
+  });
+});
+
+describe("who sees and changes rules", () => {
+  let jars: Record<"technician" | "officer" | "manager" | "admin", Jar>;
+  let rules: Record<string, string>;
+
+  beforeAll(async () => {
+    jars = {
+      technician: technicianJar,
+      officer: await signIn("officer@test.example", TEST_PASSWORD),
+      manager: await signIn("manager@test.example", TEST_PASSWORD),
+      admin: await signIn("admin@test.example", TEST_PASSWORD),
+    };
+    rules = {
+      sensorForTechnicians: await createRule(db, { name: "Stuck probe (for technicians)", parameter: "conductivity", condition: "flat-line", params: { readings: 8, tolerance: 0 }, notifyRoles: ["technician"] }),
+      sensorForOfficers: await createRule(db, { name: "Stuck probe (officers only)", parameter: "conductivity", condition: "flat-line", params: { readings: 8, tolerance: 0 }, notifyRoles: ["officer"] }),
+      levelForTechnicians: await createRule(db, { name: "High level told to technicians", params: { threshold: 3000, clear: 2900, minDurationMin: 0 }, notifyRoles: ["technician"] }),
+      levelForManagers: await createRule(db, { name: "High level told to managers", params: { threshold: 3000, clear: 2900, minDurationMin: 0 }, notifyRoles: ["manager", "officer"] }),
+    };
+  });
+
+  it("shows a technician only the sensor checks that tell technicians", async () => {
+    const html = await (await request("/alert-rules", { jar: jars.technician })).text();
+    expect(html).toContain("Stuck probe (for technicians)");
+    expect(html).not.toContain("Stuck probe (officers only)");
+    expect(html).not.toContain("High level told to technicians");
+    expect(html).not.toContain("High level told to managers");
+    expect(html).not.toContain("New rule");
+    expect((await request(`/alert-rules/${rules.sensorForTechnicians}`, { jar: jars.technician })).status).toBe(200);
+    expect((await request(`/alert-rules/${rules.levelForTechnicians}`, { jar: jars.technician })).status).toBe(403);
+  });
+
+  it("shows a manager the rules that tell managers, read-only: changing one answers 403", async () => {
+    const html = await (await request("/alert-rules", { jar: jars.manager })).text();
+    expect(html).toContain("High level told to managers");
+    expect(html).not.toContain("Stuck probe");
+    const page = await request(`/alert-rules/${rules.levelForManagers}`, { jar: jars.manager });
+    expect(page.status).toBe(200);
+    expect(await page.text()).not.toContain("Save changes");
+    const edit = await request(`/alert-rules/${rules.levelForManagers}`, { jar: jars.manager, form: { intent: "toggle", enabled: "false" } });
+    expect(edit.status).toBe(403);
+    const create = await request("/alert-rules/new", { jar: jars.manager, form: { intent: "save", name: "Manager's rule" } });
+    expect(create.status).toBe(403);
+    const toggle = await request("/alert-rules", { jar: jars.manager, form: { intent: "toggle", ruleId: rules.levelForManagers, enabled: "false" } });
+    expect(toggle.status).toBe(403);
+    expect((await db.selectFrom("alert_rule").select("enabled").where("id", "=", rules.levelForManagers).executeTakeFirstOrThrow()).enabled).toBe(true);
+  });
+
+  it("lets an officer create a rule in mS/cm and hours, stored in µS/cm and minutes, with its history re-checked in the background", async () => {
+    const { siteId } = await createSite(db, { code: "ALR4" });
+    const res = await request("/alert-rules/new", {
+      jar: jars.officer,
+      form: {
+        intent: "save",
+        name: "ALR4 above 2.5 mS/cm at 20 °C",
+        parameter: "sc25",
+        condition: "above",
+        threshold: "2.5",
+        clearLevel: "2.4",
+        valueUnit: "mS/cm",
+        minDuration: "1.5",
+        durationUnit: "h",
+        referenceC: "20",
+        scope: "sites",
+        siteIds: siteId,
+        notifyRoles: "officer",
+        email: "on",
+        emailsPerHour: "3",
+        enabled: "on",
+        guidelineSource: "Directive (EU) 2020/2184 Annex I Part C",
+      },
+    });
+    expect(res.status).toBe(302);
+    const id = res.headers.get("Location")!.match(/\/alert-rules\/([0-9a-f-]{36})/)![1];
+    const rule = await db.selectFrom("alert_rule").selectAll().where("id", "=", id).executeTakeFirstOrThrow();
+    expect(rule.params).toEqual({ threshold: 2500, clear: 2400, minDurationMin: 90, referenceC: 20, unit: "mS/cm", durationUnit: "h" });
+    expect(rule.site_ids).toEqual([siteId]);
+    expect(rule.emails_per_hour).toBe(3);
+    const { rows } = await sql`select 1 from graphile_worker._private_jobs where key = ${`evaluate-rule:${id}`}`.execute(db);
+    expect(rows).toHaveLength(1);
+    // The edit form shows the values in the units they were entered in.
+    const html = await (await request(`/alert-rules/${id}`, { jar: jars.officer })).text();
+    expect(html).toContain('value="2.5"');
+    expect(html).toContain('value="1.5"');
+  });
+
+  it("refuses a clear level on the wrong side of the threshold, naming the field", async () => {
+    const res = await request("/alert-rules/new", {
+      jar: jars.officer,
+      form: { intent: "save", name: "Backwards", parameter: "tds", condition: "above", threshold: "500", clearLevel: "550", minDuration: "0", scope: "all", notifyRoles: "officer", emailsPerHour: "4" },
+    });
+    expect(res.status).toBe(400);
+    expect(await res.text()).toContain("the clear level must be at or below the threshold");
+  });
+});
+
+describe("reviewing an event", () => {
+  it("classifies, flags the readings of a sensor fault, keeps every change in the audit trail, and takes the flag off again", async () => {
+    const officer = await signIn("officer@test.example", TEST_PASSWORD);
+    const { siteId, loggerId } = await createSite(db, { code: "ALR5" });
+    const ruleId = await createRule(db, { params: { threshold: 1000, clear: 900, minDurationMin: 0 }, siteIds: [siteId] });
+    const range = await insertReadings(db, { siteId, loggerId, startIso: "2025-03-03T00:00:00Z", sc: [500, 1500, 1600, 1550, 600, 500] });
+    await detectExceedances({ siteId, ...range, reason: "ingest" }, { sendEmail: false });
+    const [event] = await eventsOf(ruleId);
+
+    const page = await request(`/exceedances/${event.id}`, { jar: officer });
+    expect(page.status).toBe(200);
+    expect(await page.text()).toContain("screening values");
+
+    const res = await request(`/exceedances/${event.id}`, {
+      jar: officer,
+      form: { intent: "review", outcome: "sensor-fault", comment: "Probe <fouled> by weed", flagReadings: "on", then: "close" },
+    });
+    expect(res.status).toBe(302);
+    const reviewed = await db.selectFrom("exceedance").selectAll().where("id", "=", event.id).executeTakeFirstOrThrow();
+    expect(reviewed).toMatchObject({ status: "closed", outcome: "sensor-fault", comment: "Probe <fouled> by weed", readings_flagged: 4, closed_by: people.officer.id });
+    // 01:00 (start) to 01:00… 04:00 is the first reading back at or below the clear level: 4 readings, raw values untouched.
+    const flagged = await db.selectFrom("readings").select(["time", "sc25_us_cm", "quality_flag"]).where("site_id", "=", siteId).orderBy("time").execute();
+    expect(flagged.map((r) => r.quality_flag)).toEqual([null, "sensor", "sensor", "sensor", "sensor", null]);
+    expect(flagged.map((r) => r.sc25_us_cm)).toEqual([500, 1500, 1600, 1550, 600, 500]);
+    const audit = await db.selectFrom("exceedance_audit").selectAll().where("exceedance_id", "=", event.id).orderBy("id").execute();
+    expect(audit.map((a) => a.action)).toEqual(["detected", "closed"]);
+    expect(audit[1].person_id).toBe(people.officer.id);
+    expect(audit[1].before).toEqual({ outcome: null, comment: "", status: "open", readings_flagged: 0 });
+    expect(audit[1].after).toEqual({ outcome: "sensor-fault", comment: "Probe <fouled> by weed", status: "closed", readings_flagged: 4 });
+    // Summaries and detection catch up with the flag: readings-changed is queued for the event's stretch.
+    const queued = await queuedChanges(siteId);
+    expect(queued).toContainEqual({ siteId, fromMs: event.started_at.getTime(), toMs: event.ended_at!.getTime(), reason: "manual" });
+    // Re-running detection leaves the reviewed event alone (its readings are now left out).
+    const again = await detectExceedances({ siteId, ...range, reason: "manual" }, { sendEmail: false });
+    expect(again).toMatchObject({ inserted: 0, withdrawn: 0 });
+
+    // The page shows the comment escaped.
+    const html = await (await request(`/exceedances/${event.id}`, { jar: officer })).text();
+    expect(html).toContain("Probe &lt;fouled&gt; by weed");
+    expect(html).not.toContain("Probe <fouled>");
+
+    // Reclassified as real: the flag comes off, the event reopens.
+    await request(`/exceedances/${event.id}`, { jar: officer, form: { intent: "review", outcome: "water-quality", comment: "Lab confirmed", then: "reopen" } });
+    const back = await db.selectFrom("readings").select("quality_flag").where("site_id", "=", siteId).execute();
+    expect(back.every((r) => r.quality_flag === null)).toBe(true);
+    const last = await db.selectFrom("exceedance_audit").selectAll().where("exceedance_id", "=", event.id).orderBy("id", "desc").executeTakeFirstOrThrow();
+    expect(last.action).toBe("reopened");
+    expect(last.after).toMatchObject({ outcome: "water-quality", status: "open", readings_flagged: 0 });
+  });
+
+  it("lists events with filters and counts unread notifications in the header", async () => {
+    const officer = await signIn("officer@test.example", TEST_PASSWORD);
+    const list = await request("/exceedances?site=ALR1&status=closed", { jar: officer });
+    expect(await list.text()).toContain("No event matches these filters.");
+    const open = await (await request("/exceedances?site=ALR1", { jar: officer })).text();
+    expect(open).toContain("ALR1");
+    expect(open).toContain("1,500 µS/cm");
+
+    const unread = await db.selectFrom("notification").select((eb) => eb.fn.countAll<number>().as("n")).where("person_id", "=", people.officer.id).where("read_at", "is", null).executeTakeFirstOrThrow();
+    const home = await (await request("/notifications", { jar: officer })).text();
+    expect(home).toContain(`Notifications, ${Number(unread.n)} unread`);
+    await request("/notifications", { jar: officer, form: { intent: "read-all" } });
+    expect(await (await request("/notifications", { jar: officer })).text()).toContain("Notifications, none unread");
+    // Marking read never touches someone else's notifications.
+    const managerUnread = await db.selectFrom("notification").select("id").where("person_id", "=", people.manager.id).where("read_at", "is", null).execute();
+    expect(managerUnread.length).toBeGreaterThan(0);
   });
 });

@@ -6,6 +6,7 @@ import { request, signIn, type Jar } from "../support/app.ts";
 import { createPeople, TEST_PASSWORD } from "../support/people.ts";
 import { createFixedRecords, FIXED } from "../support/fixed-records.ts";
 import { createFixedUploadRecords, FIXED_UPLOAD } from "../support/fixed-uploads.ts";
+import { createFixedAlertRecords, FIXED_ALERTS } from "../support/fixed-alerts.ts";
 import { createFixedVisitRecords, FIXED_VISIT } from "../support/fixed-visits.ts";
 import type { RoleName } from "#db/schema.ts";
 
@@ -63,6 +64,15 @@ export const AUTH_TABLE: Row[] = [
   { pattern: "summaries/sites/:siteCode", path: "summaries/sites/FX-01", get: ["officer", "manager", "admin"] },
   { pattern: "summaries/:week/print", path: "summaries/2025-W11/print", get: ["officer", "manager", "admin"] },
   { pattern: "reports/site", path: "reports/site?site=FX-01&from=2025-03-10&to=2025-03-16", get: ["officer", "manager", "admin"] },
+  // Alert rules: every role lists the rules that tell it; officers and admins change them. The fixed
+  // rule tells officers and managers. Events: officers and admins; a manager opens the fixed event
+  // because they were told about it.
+  { pattern: "alert-rules", get: ALL, post: ["officer", "admin"] },
+  { pattern: "alert-rules/new", get: ["officer", "admin"], post: ["officer", "admin"] },
+  { pattern: "alert-rules/:ruleId", path: `alert-rules/${FIXED_ALERTS.ruleId}`, get: ["officer", "manager", "admin"], post: ["officer", "admin"] },
+  { pattern: "exceedances", get: ["officer", "admin"], post: ["officer", "admin"] },
+  { pattern: "exceedances/:exceedanceId", path: `exceedances/${FIXED_ALERTS.exceedanceId}`, get: ["officer", "manager", "admin"], post: ["officer", "admin"] },
+  { pattern: "notifications", get: ALL, post: ALL },
   { pattern: "api/health", public: true },
   { pattern: "api/uploads", get: ["technician", "officer", "admin"], post: ["technician", "officer", "admin"], api: true },
   {
@@ -106,6 +116,7 @@ beforeAll(async () => {
   await createPeople(db);
   await createFixedRecords(db);
   await createFixedUploadRecords(db);
+  await createFixedAlertRecords(db);
   await createFixedVisitRecords(db);
   jars = Object.fromEntries(
     await Promise.all(ALL.map(async (r) => [r, await signIn(`${r}@test.example`, TEST_PASSWORD)] as const)),

@@ -252,10 +252,12 @@ export function windowChanges(readings: readonly Reading[], windowMs: number) {
 }
 
 /**
- * A change larger than `change` within `windowMs` (a salt pulse arriving, a storm diluting): an
- * event for each run of readings reached by such a change, ending at the first reading that is not.
- * Peak: the largest change (in the parameter's unit per window; a fall is reported as a negative
- * number) and the reading it reached.
+ * A change larger than `change` within `windowMs` (a salt pulse arriving, a storm diluting). An
+ * event starts at the first reading reached by such a change and lasts until a whole window has
+ * passed without one: its endMs is the first reading a full window after the last such reading (so
+ * a pulse whose rate hovers around the limit is one event, not a flicker of small ones). Peak: the
+ * largest change (in the parameter's unit per window; a fall is reported as a negative number) and
+ * the reading it reached.
  */
 export function detectRateOfChange(readings: readonly Reading[], c: RateCondition, opts: Common): DetectedEvent[] {
   if (!(c.change > 0)) throw new RangeError("The change must be greater than zero");
@@ -264,7 +266,21 @@ export function detectRateOfChange(readings: readonly Reading[], c: RateConditio
   const amount = (i: number) => (c.direction === "rise" ? rise[i] : c.direction === "fall" ? fall[i] : Math.max(rise[i], fall[i]));
   const signed = (i: number) => (c.direction === "fall" || (c.direction === "either" && fall[i] > rise[i]) ? -fall[i] : rise[i]);
   const hit = (i: number) => amount(i) > c.change;
-  return runs(readings, { ...opts, starts: hit, keeps: hit, score: amount, scoreOfPeak: Math.abs, peakOf: signed });
+  // runs() asks starts() for each reading while no event is open and keeps() while one is, in order.
+  let lastHitMs = opts.open ? opts.open.lastMs : -Infinity;
+  const starts = (i: number) => {
+    if (!hit(i)) return false;
+    lastHitMs = readings[i].timeMs;
+    return true;
+  };
+  const keeps = (i: number) => {
+    if (hit(i)) {
+      lastHitMs = readings[i].timeMs;
+      return true;
+    }
+    return readings[i].timeMs - lastHitMs < c.windowMs;
+  };
+  return runs(readings, { ...opts, starts, keeps, score: amount, scoreOfPeak: Math.abs, peakOf: signed });
 }
 
 // ---- Flat line --------------------------------------------------------------------------------

@@ -144,23 +144,34 @@ describe("rate of change", () => {
 
   it("finds a salt pulse rising more than the limit within the window", () => {
     // A road-salt pulse: 450 → 2450 µS/cm over an hour and a half, then a slow decay.
-    const r = series([450, 452, 451, 800, 1300, 1900, 2300, 2450, 2440, 2420, 2400, 2380]);
+    const r = series([450, 452, 451, 800, 1300, 1900, 2300, 2450, 2440, 2420, 2400, 2380, 2370, 2360]);
     const rule = { change: 500, windowMs: 60 * MIN, direction: "rise" as const };
     // A 60-minute window holds the four readings before. Index 3 (800): lowest 450 → 350, not
     // enough. Index 4 (1300): 450 → 850, a hit. Index 6 (2300): lowest of 2–5 = 451 → 1849, the
-    // largest. Index 9 (2420): lowest of 5–8 = 1900 → 520, still a hit. Index 10 (2400): lowest of
-    // 6–9 = 2300 → 100: the event ends there.
+    // largest. Index 9 (2420): lowest of 5–8 = 1900 → 520, the last hit. Index 10 (2400): lowest
+    // of 6–9 = 2300 → 100, no hit; nor 11 and 12. Index 13 is a full hour after the last hit: the
+    // event ends there.
     expect(detectRateOfChange(r, rule, { maxGapMs: GAP })).toEqual([
-      { startMs: at(4), endMs: at(10), peakValue: 1849, peakMs: at(6), lastMs: at(9) },
+      { startMs: at(4), endMs: at(13), peakValue: 1849, peakMs: at(6), lastMs: at(12) },
+    ]);
+  });
+
+  it("keeps a rate that hovers around the limit as one event", () => {
+    // A 20-minute window holds the one reading before. Rises of 60, 40, 60, 2, 1 against a limit of
+    // 50: the 40 (index 2) does not end the event because the next hit (index 3) follows within the
+    // window. Index 5 is 30 minutes after the last hit: the event ends there.
+    const r = series([100, 160, 200, 260, 262, 263]);
+    expect(detectRateOfChange(r, { change: 50, windowMs: 20 * MIN, direction: "rise" }, { maxGapMs: GAP })).toEqual([
+      { startMs: at(1), endMs: at(5), peakValue: 60, peakMs: at(1), lastMs: at(4) },
     ]);
   });
 
   it("reports a fall as a negative change and ignores it when only rises are asked for", () => {
-    const r = series([410, 405, 300, 200, 185, 190, 195]);
+    const r = series([410, 405, 300, 200, 185, 190, 195, 200, 205]);
     const fall = detectRateOfChange(r, { change: 150, windowMs: 45 * MIN, direction: "fall" }, { maxGapMs: GAP });
-    // Index 3: highest of 0–2 = 410 → fall 210. Index 4: highest of 1–3 = 405 → 220. Index 5:
-    // highest of 2–4 = 300 → 110: ends.
-    expect(fall).toEqual([{ startMs: at(3), endMs: at(5), peakValue: -220, peakMs: at(4), lastMs: at(4) }]);
+    // Index 3: highest of 0–2 = 410 → fall 210. Index 4: highest of 1–3 = 405 → 220, the last hit.
+    // Index 5: highest of 2–4 = 300 → 110, no hit. Index 7 is 45 minutes after the last hit: ends.
+    expect(fall).toEqual([{ startMs: at(3), endMs: at(7), peakValue: -220, peakMs: at(4), lastMs: at(6) }]);
     expect(detectRateOfChange(r, { change: 150, windowMs: 45 * MIN, direction: "rise" }, { maxGapMs: GAP })).toEqual([]);
     expect(detectRateOfChange(r, { change: 150, windowMs: 45 * MIN, direction: "either" }, { maxGapMs: GAP })).toEqual(fall);
   });
