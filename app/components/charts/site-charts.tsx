@@ -38,7 +38,7 @@ const PANEL_HEIGHT = 150;
 const PANEL_GAP = 62;
 const TOP = 84;
 const SLIDER = 70;
-const BAND = 30;
+const BAND = 42;
 
 function panelsOf(parameters: SeriesParameter[]): SeriesParameter[][] {
   const has = new Set(parameters);
@@ -247,7 +247,7 @@ function buildOption(o: {
     });
   }
 
-  if (o.grades?.length) addGradeBand({ grades: o.grades, index: panels.length, top: topOf(panels.length - 1) + PANEL_HEIGHT + 34, range, grids, xAxes, yAxes, titles, seriesList });
+  if (o.grades?.length) addGradeBand({ grades: o.grades, index: panels.length, top: topOf(panels.length - 1) + PANEL_HEIGHT + 46, range, grids, xAxes, yAxes, titles, seriesList });
   const all = [...grids.keys()];
   return {
     animation: false,
