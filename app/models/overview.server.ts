@@ -7,6 +7,7 @@ import type { OverviewSort } from "#app/utils/dashboard-options.ts";
 import { db } from "#app/utils/db.server.ts";
 import { listSitesWithLoggers } from "./site.server.ts";
 import { thresholdsBySite } from "./site-settings.server.ts";
+import { openCountsBySite } from "./exceedance.server.ts";
 
 // The multi-site overview: one entry per site with its latest values, how stale and complete its
 // data is, a 7-day trend and its status in plain words. Four queries for all sites together (sites
@@ -100,13 +101,9 @@ async function deploymentsSince(siteIds: string[], fromMs: number) {
     .execute();
 }
 
-/**
- * Open exceedances per site. There is no exceedance store yet: every site answers null (shown as
- * "—"). When alert events land, count the site's unresolved events here; the overview needs no
- * other change.
- */
+/** Open exceedances per site: events the alert rules found that are not closed (app/models/exceedance.server.ts). */
 export async function openExceedanceCounts(siteIds: readonly string[]): Promise<Map<string, number | null>> {
-  return new Map(siteIds.map((id) => [id, null]));
+  return openCountsBySite(siteIds);
 }
 
 /** The plain-words status of a site from its latest reading (or none) and its display thresholds. */

@@ -5,6 +5,8 @@ import { tdsFactorWarning } from "#app/lib/water/index.ts";
 import { latestReadings, statusFromLatest } from "./overview.server.ts";
 import { deploymentsOverlapping, labSamplesInRange, loggingIntervalOf, rangeStatistics } from "./series.server.ts";
 import { findSiteByCode, thresholdsOf } from "./site-settings.server.ts";
+import { eventsForSiteChart } from "./exceedance.server.ts";
+import { thresholdLinesForSite } from "./alert-rule.server.ts";
 
 // Everything a site page needs besides the chart points (which the browser fetches from the series
 // API): the site, its settings in words, the shown range, statistics of every reading in it, the
@@ -18,9 +20,12 @@ export async function loadSiteDashboard(code: string, search: URLSearchParams, n
   const anchorMs = rangeAnchor(latest ? latest.time.getTime() : null, nowMs);
   const range = resolveRange(search, anchorMs, site.time_zone);
   const deployments = await deploymentsOverlapping(site.id, range.fromMs, range.toMs);
-  const [stats, labSamples] = await Promise.all([
+  const [stats, labSamples, alertEvents, ruleLines] = await Promise.all([
     rangeStatistics({ siteId: site.id, fromMs: range.fromMs, toMs: range.toMs, thresholds, deployments }),
     labSamplesInRange(site.id, range.fromMs, range.toMs),
+    // The alert rules' events in the range (shaded on the charts) and their threshold lines.
+    eventsForSiteChart(site.id, range.fromMs, range.toMs),
+    thresholdLinesForSite(site),
   ]);
   const present = new Set(stats.parameters.map((p) => p.parameter));
   const charted: SeriesParameter[] = SERIES_PARAMETERS.filter((p) => present.has(p));
@@ -59,6 +64,8 @@ export async function loadSiteDashboard(code: string, search: URLSearchParams, n
     stats,
     charted,
     labSamples,
+    alertEvents: alertEvents.map((e) => ({ parameter: e.parameter, fromMs: e.fromMs, toMs: e.toMs })),
+    ruleLines: ruleLines.map((r) => ({ parameter: r.parameter, direction: r.direction, threshold: r.threshold, ruleName: r.ruleName })),
     tdsWarning,
   };
 }

@@ -359,3 +359,37 @@ describe("reviewing an event", () => {
     expect(managerUnread.length).toBeGreaterThan(0);
   });
 });
+
+describe("on the dashboards", () => {
+  it("counts open events per site for the overview, and gives the site chart its events and the rules' threshold lines", async () => {
+    const { openExceedanceCounts } = await import("#app/models/overview.server.ts");
+    const { eventsForSiteChart } = await import("#app/models/exceedance.server.ts");
+    const { thresholdLinesForSite } = await import("#app/models/alert-rule.server.ts");
+    const { siteId, loggerId } = await createSite(db, { code: "ALR6", kind: "borehole" });
+    const ruleId = await createRule(db, { name: "ALR6 at 20 °C", params: { threshold: 2500, clear: 2375, minDurationMin: 0, referenceC: 20 }, siteIds: [siteId] });
+    const range = await insertReadings(db, { siteId, loggerId, startIso: "2025-05-01T00:00:00Z", sc: [2000, 3000, 3100, 2000, 2000, 3000, 2000] });
+    await detectExceedances({ siteId, ...range, reason: "ingest" }, { sendEmail: false });
+
+    // Rules for every site from the tests above find events here too: count against the table.
+    const openHere = async () => Number((await db.selectFrom("exceedance").select((eb) => eb.fn.countAll<number>().as("n")).where("site_id", "=", siteId).where("status", "=", "open").executeTakeFirstOrThrow()).n);
+    const before = await openHere();
+    expect(before).toBeGreaterThanOrEqual(2);
+    expect((await openExceedanceCounts([siteId])).get(siteId)).toBe(before);
+    const mine = await eventsOf(ruleId);
+    expect(mine).toHaveLength(2);
+    await db.updateTable("exceedance").set({ status: "closed" }).where("id", "=", mine[0].id).execute();
+    expect((await openExceedanceCounts([siteId])).get(siteId)).toBe(before - 1);
+
+    // Closed events are still shaded; withdrawn ones would not be.
+    const spans = (await eventsForSiteChart(siteId, range.fromMs, range.toMs + 1)).filter((e) => mine.some((m) => m.id === e.id));
+    expect(spans.map((e) => [new Date(e.fromMs).toISOString(), new Date(e.toMs).toISOString()])).toEqual([
+      ["2025-05-01T00:15:00.000Z", "2025-05-01T00:45:00.000Z"],
+      ["2025-05-01T01:15:00.000Z", "2025-05-01T01:30:00.000Z"],
+    ]);
+    const site = await db.selectFrom("site").select(["id", "kind", "compensation_method", "alpha_per_c", "reference_c"]).where("id", "=", siteId).executeTakeFirstOrThrow();
+    const lines = (await thresholdLinesForSite(site)).filter((l) => l.ruleName === "ALR6 at 20 °C");
+    // 2,500 µS/cm at 20 °C at a 25 °C site with α = 0.0191: 2500 / (1 − 5 × 0.0191) = 2763.97 (Standard Methods 2510 B linear form, by hand).
+    expect(lines).toHaveLength(1);
+    expect(lines[0].threshold).toBeCloseTo(2763.97, 1);
+  });
+});

@@ -32,7 +32,17 @@ type Props = {
   describedBy?: string;
   /** Periods of record and their grades, drawn as a band under the time axis. */
   grades?: GradeSpan[];
+  /**
+   * Exceedance events found by the alert rules, shaded in their parameter's panel. Without them the
+   * shown stretches beyond a display threshold are shaded instead.
+   */
+  events?: ChartEventSpan[];
+  /** Threshold levels of the alert rules covering the site, drawn beside the display thresholds. */
+  ruleLines?: RuleLine[];
 };
+
+export type ChartEventSpan = { parameter: string; fromMs: number; toMs: number };
+export type RuleLine = { parameter: string; direction: "above" | "below"; threshold: number; ruleName: string };
 
 const PANEL_HEIGHT = 150;
 const PANEL_GAP = 62;
@@ -51,7 +61,7 @@ function panelsOf(parameters: SeriesParameter[]): SeriesParameter[][] {
   return panels;
 }
 
-export function SiteCharts({ siteId, parameters, range, thresholds, labSamples, referenceC, timeZone, describedBy, grades }: Props) {
+export function SiteCharts({ siteId, parameters, range, thresholds, labSamples, referenceC, timeZone, describedBy, grades, events, ruleLines }: Props) {
   const requests: SeriesRequest[] = useMemo(() => parameters.map((p) => ({ key: p, siteId, parameter: p })), [siteId, parameters]);
   const series = useZoomableSeries(requests, range);
   const panels = useMemo(() => panelsOf(parameters), [parameters]);
@@ -61,8 +71,8 @@ export function SiteCharts({ siteId, parameters, range, thresholds, labSamples, 
   const height = TOP + panels.length * (PANEL_HEIGHT + PANEL_GAP) - PANEL_GAP + SLIDER + (grades?.length ? BAND : 0);
 
   const option = useMemo(
-    () => buildOption({ panels, shown: series.shown, range, thresholds, labSamples, referenceC, timeZone, grades }),
-    [panels, series.shown, range, thresholds, labSamples, referenceC, timeZone, grades],
+    () => buildOption({ panels, shown: series.shown, range, thresholds, labSamples, referenceC, timeZone, grades, events, ruleLines }),
+    [panels, series.shown, range, thresholds, labSamples, referenceC, timeZone, grades, events, ruleLines],
   );
 
   const onEvents = useMemo(
@@ -124,6 +134,8 @@ function buildOption(o: {
   referenceC: number;
   timeZone: string;
   grades?: GradeSpan[];
+  events?: ChartEventSpan[];
+  ruleLines?: RuleLine[];
 }) {
   const { panels, shown, range, thresholds, labSamples, referenceC, timeZone } = o;
   const span = range.toMs - range.fromMs;
@@ -175,6 +187,10 @@ function buildOption(o: {
       const look = PARAMETER_LOOK[p];
       const points = shown[p] ?? [];
       const th = p === panel[0] ? thresholds.filter((t) => t.parameter === p) : [];
+      // Alert rules: their threshold lines, and their events shaded in the panel showing the parameter.
+      const rules = p === panel[0] ? (o.ruleLines ?? []).filter((r) => r.parameter === p) : [];
+      const events = p === panel[0] && o.events ? o.events.filter((e) => panel.includes(e.parameter as SeriesParameter)) : null;
+      const minWidth = span / 400;
       seriesList.push({
         id: p,
         name: p === "conductivity" ? "Raw conductivity at water temperature" : parameterLabel(p, referenceC),
@@ -190,12 +206,18 @@ function buildOption(o: {
         animation: false,
         color: look.color,
         lineStyle: { color: look.color, type: look.dash, width: look.width },
-        markLine: th.length
+        markLine: th.length || rules.length
           ? {
               silent: true,
               symbol: "none",
               animation: false,
-              data: th.map((t) => ({
+              data: [
+                ...rules.map((r) => ({
+                  yAxis: r.threshold,
+                  lineStyle: { color: MARK.upper, type: [8, 3, 2, 3], width: 1.25 },
+                  label: { formatter: `Alert rule ${formatValue(p, r.threshold)}`, position: "insideStartTop", color: MARK.upper },
+                })),
+                ...th.map((t) => ({
                 yAxis: t.value,
                 lineStyle: { color: t.bound === "upper" ? MARK.upper : MARK.lower, type: t.bound === "upper" ? "dashed" : "dotted", width: 1.5 },
                 label: {
@@ -204,16 +226,26 @@ function buildOption(o: {
                   color: t.bound === "upper" ? MARK.upper : MARK.lower,
                 },
               })),
+              ],
             }
           : undefined,
-        markArea: th.length
-          ? {
-              silent: true,
-              animation: false,
-              itemStyle: { color: MARK.exceedanceFill },
-              data: th.flatMap((t) => exceedancePeriods(points, t.value, t.bound).map((e) => [{ xAxis: e.fromMs }, { xAxis: e.toMs }])),
-            }
-          : undefined,
+        markArea: events
+          ? events.length
+            ? {
+                silent: true,
+                animation: false,
+                itemStyle: { color: MARK.exceedanceFill },
+                data: events.map((e) => [{ xAxis: e.fromMs }, { xAxis: Math.max(e.toMs, e.fromMs + minWidth) }]),
+              }
+            : undefined
+          : th.length
+            ? {
+                silent: true,
+                animation: false,
+                itemStyle: { color: MARK.exceedanceFill },
+                data: th.flatMap((t) => exceedancePeriods(points, t.value, t.bound).map((e) => [{ xAxis: e.fromMs }, { xAxis: e.toMs }])),
+              }
+            : undefined,
       });
     }
   });

@@ -94,7 +94,7 @@ export default function SitePage({ loaderData }: Route.ComponentProps) {
         {range.problem ? <p role="alert" className="caution">{range.problem}</p> : null}
         <p className="text-sm text-ink-700" data-testid="shown-range">
           Showing {shownFrom} to {shownTo}. Zoom with the mouse wheel or by pinching inside a chart, or drag the slider under the charts:
-          finer detail is fetched for the zoomed stretch. Shaded stretches are beyond a display threshold.
+          finer detail is fetched for the zoomed stretch. Shaded stretches are exceedance events found by the alert rules; dash-dotted lines are the rules' thresholds.
         </p>
         {charted.includes("sc25") ? (
           <p className="text-sm">
@@ -117,6 +117,8 @@ export default function SitePage({ loaderData }: Route.ComponentProps) {
             grades={grades}
             range={{ fromMs: range.fromMs, toMs: range.toMs }}
             thresholds={thresholds}
+            events={loaderData.alertEvents}
+            ruleLines={loaderData.ruleLines}
             labSamples={labSamples}
             referenceC={site.referenceC}
             timeZone={site.timeZone}
