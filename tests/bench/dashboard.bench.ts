@@ -273,6 +273,18 @@ const exported = await time(async () => {
 const exportRows = exported.result;
 const rowsPerS = exportRows / (exported.ms / 1000);
 console.log(`CSV export:      ${exportRows.toLocaleString("en")} rows in ${exported.ms.toFixed(0)} ms median → ${Math.round(rowsPerS).toLocaleString("en")} rows/s`);
+
+// 6. Weekly summaries (a section of its own, kept with the summaries work): these sites' weekly
+// cache rebuilt from scratch, then the weekly summary page served from it. `npm run bench:summaries`
+// measures the same at the issue's size (one site logging every minute) and prints its result line.
+const { rebuildAllSummaries } = await import("#app/models/weekly-summary.server.ts");
+const rebuilt = await rebuildAllSummaries();
+const summariesPage = await time(async () => {
+  const res = await request("/summaries", { jar });
+  if (res.status !== 200) throw new Error(`weekly summaries answered ${res.status}`);
+  return (await res.text()).length;
+});
+console.log(`weekly summaries: ${rebuilt.weeks} site-weeks rebuilt in ${rebuilt.seconds.toFixed(2)} s; summary page ${summariesPage.ms.toFixed(1)} ms median`);
 console.log(`load average after measuring: ${os.loadavg().map((x) => x.toFixed(2)).join(" ")}`);
 console.log("targets: series ≤ 100 ms and ≤ 3 × its SQL; overview ≤ 200 ms; export ≥ 50,000 rows/s");
 await db.destroy();

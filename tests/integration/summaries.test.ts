@@ -107,7 +107,7 @@ beforeAll(async () => {
   await db.insertInto("site_threshold").values({ site_id: SITE, parameter: "sc25", bound: "upper", value: 520 }).execute();
 
   const a = Array.from({ length: 672 }, (_, i) => ({ t: WEEK_A + i * Q, sc: 400 + (i % 100), temp: 10 }));
-  const b = Array.from({ length: 480 }, (_, i) => ({ t: WEEK_B + i * Q, sc: 500 + 10 * (i % 5), temp: 12 }));
+  const b: { t: number; sc: number; temp: number; flag?: string | null }[] = Array.from({ length: 480 }, (_, i) => ({ t: WEEK_B + i * Q, sc: 500 + 10 * (i % 5), temp: 12 }));
   b.push({ t: Date.UTC(2025, 2, 16, 12), sc: 9999, temp: 12, flag: "spike" });
   await insertReadings(SITE, LOGGER, [...a, ...b]);
 
@@ -352,7 +352,8 @@ describe("pages, export and digest", () => {
     expect(mail.html).toContain("Tollmere &lt;Weir&gt; &amp; &quot;Gauge&quot;");
     expect(mail.html).not.toContain("<Weir>");
     // "Look at this week" sites are listed before the table.
-    expect(mail.text.indexOf("Sites that need a look first")).toBeLessThan(mail.text.indexOf("The week at every site"));
+    const text = mail.text ?? "";
+    expect(text.indexOf("Sites that need a look first")).toBeLessThan(text.indexOf("The week at every site"));
 
     const again = await sendWeeklyDigest({ week: "2025-03-10" });
     expect(again).toMatchObject({ sent: 0, skipped: 2 });
