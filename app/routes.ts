@@ -69,6 +69,8 @@ export default [
 
   ]),
 
+  // The printable weekly report stands outside the app's frame (no navigation on paper).
+  route("summaries/:week/print", "routes/summaries/print.tsx"),
   route("api/health", "routes/api/health.ts"),
   route("api/uploads", "routes/api/uploads/index.ts"),
   route("api/uploads/:uploadId/errors.csv", "routes/api/uploads/errors-csv.ts"),
@@ -76,8 +78,6 @@ export default [
   route("api/sites/:siteId/export.csv", "routes/api/sites/export-csv.ts"),
   route("api/lab/template.csv", "routes/api/lab/template-csv.ts"),
   route("api/visits/photos", "routes/api/visits/photos.ts"),
+  route("api/summaries/:week/table.csv", "routes/api/summaries/table-csv.ts"),
   route("*", "routes/not-found.tsx"),
 ] satisfies RouteConfig;
-  // The printable weekly report stands outside the app's frame (no navigation on paper).
-  route("summaries/:week/print", "routes/summaries/print.tsx"),
-  route("api/summaries/:week/table.csv", "routes/api/summaries/table-csv.ts"),
