@@ -92,7 +92,7 @@ export function Heatmap({ data }: { data: HeatmapData }) {
             <tbody>
               {data.sites.map((s) => (
                 <tr key={s.code}>
-                  <th scope="row">{s.code}</th>
+                  <th scope="row" className="border-b border-ink-100">{s.code}</th>
                   {s.values.map((v, i) => (
                     <td key={i} className="text-right whitespace-nowrap">
                       {heatmapValueText(data.stat, v)}

@@ -82,7 +82,7 @@ export function SeriesSvg({ points, band = [], trendLine = null, threshold = nul
   const t1 = Math.max(...times, t0 + 86_400_000);
   const L = 58;
   const R = 12;
-  const T = 10;
+  const T = 22;
   const B = 28;
   const x = (t: number) => L + ((t - t0) / (t1 - t0)) * (width - L - R);
   const y = (v: number) => T + (1 - (v - y0) / (y1 - y0)) * (height - T - B);
@@ -115,7 +115,7 @@ export function SeriesSvg({ points, band = [], trendLine = null, threshold = nul
   const yTicks: number[] = [];
   for (let v = y0; v <= y1 + step / 2; v += step) yTicks.push(v);
   return (
-    <svg viewBox={`0 0 ${width} ${height}`} width="100%" role="img" aria-label={label} className="series-svg max-w-full" preserveAspectRatio="xMidYMid meet">
+    <svg viewBox={`0 0 ${width} ${height}`} width="100%" role="img" aria-label={label} className="series-svg" style={{ maxWidth: Math.round(width * 1.2) }} preserveAspectRatio="xMidYMid meet">
       <g fontSize="11" fill="#2f4556">
         {yTicks.map((v) => (
           <g key={v}>
@@ -125,7 +125,7 @@ export function SeriesSvg({ points, band = [], trendLine = null, threshold = nul
             </text>
           </g>
         ))}
-        <text x={4} y={T + 8}>{unit}</text>
+        <text x={4} y={12}>{unit}</text>
         {monthTicks(t0, t1, timeZone).map((tk) => (
           <text key={tk.t} x={x(tk.t)} y={height - 8} textAnchor="middle">
             {tk.text}

@@ -62,7 +62,7 @@ export function WeekTable({ rows, weekKey, previousLabel, lastYearLabel, compact
             const upper = f?.thresholds.find((t) => t.parameter === "sc25" && t.bound === "upper")?.value ?? null;
             return (
               <tr key={r.siteId} data-site={r.code}>
-                <th scope="row" className="whitespace-nowrap">
+                <th scope="row" className="border-b border-ink-100 whitespace-nowrap">
                   {compact ? (
                     <span>
                       {r.code} <span className="font-normal">{r.name}</span>

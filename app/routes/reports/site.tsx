@@ -132,7 +132,7 @@ function Report({ report, orgName }: { report: ReportData; orgName: string }) {
           </thead>
           <tbody>
             <tr>
-              <th scope="row">Specific conductance at {site.reference_c} °C (µS/cm)</th>
+              <th scope="row" className="border-b border-ink-100">Specific conductance at {site.reference_c} °C (µS/cm)</th>
               <td className="text-right">{num(report.sc25.count)}</td>
               <td className="text-right">{num(report.sc25.min)}</td>
               <td className="text-right">{num(report.sc25.mean)}</td>
@@ -141,7 +141,7 @@ function Report({ report, orgName }: { report: ReportData; orgName: string }) {
               <td className="text-right">{num(report.sc25.max)}</td>
             </tr>
             <tr>
-              <th scope="row">TDS estimate (mg/L)</th>
+              <th scope="row" className="border-b border-ink-100">TDS estimate (mg/L)</th>
               <td className="text-right">{num(report.tds.count)}</td>
               <td className="text-right">{num(report.tds.min)}</td>
               <td className="text-right">{num(report.tds.mean)}</td>
@@ -150,7 +150,7 @@ function Report({ report, orgName }: { report: ReportData; orgName: string }) {
               <td className="text-right">{num(report.tds.max)}</td>
             </tr>
             <tr>
-              <th scope="row">Temperature (°C)</th>
+              <th scope="row" className="border-b border-ink-100">Temperature (°C)</th>
               <td className="text-right">—</td>
               <td className="text-right">{num(report.temperature.min, 1)}</td>
               <td className="text-right">{num(report.temperature.mean, 1)}</td>
@@ -217,7 +217,7 @@ function Report({ report, orgName }: { report: ReportData; orgName: string }) {
             <tbody>
               {report.weeks.map((w) => (
                 <tr key={w.week}>
-                  <th scope="row">{weekLabel(w.week)}</th>
+                  <th scope="row" className="border-b border-ink-100">{weekLabel(w.week)}</th>
                   <td>
                     <WeekStatusMark status={w.status} />
                   </td>

@@ -108,7 +108,7 @@ export default function WeeklyReport({ loaderData }: Route.ComponentProps) {
               const upper = f?.thresholds.find((t) => t.parameter === "sc25" && t.bound === "upper") ?? null;
               return (
                 <tr key={r.siteId} data-site={r.code}>
-                  <th scope="row">
+                  <th scope="row" className="border-b border-ink-100">
                     {r.code}
                     <span className="block font-normal">{r.name}</span>
                   </th>
@@ -154,7 +154,7 @@ export default function WeeklyReport({ loaderData }: Route.ComponentProps) {
               const f = r.figures;
               return (
                 <tr key={r.siteId}>
-                  <th scope="row">{r.code}</th>
+                  <th scope="row" className="border-b border-ink-100">{r.code}</th>
                   <td className="text-right">{num(f?.tds.median)}</td>
                   <td className="text-right">{num(f?.tds.p95)}</td>
                   <td className="text-right">{num(f?.temperatureMean, 1)}</td>

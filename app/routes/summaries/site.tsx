@@ -95,7 +95,7 @@ export default function SiteSummary({ loaderData }: Route.ComponentProps) {
             <tbody>
               {summary.weeks.map((w) => (
                 <tr key={w.week}>
-                  <th scope="row" className="whitespace-nowrap">
+                  <th scope="row" className="border-b border-ink-100 whitespace-nowrap">
                     <Link className="underline" to={`/summaries?week=${w.key}`}>
                       {weekLabel(w.week)}
                     </Link>
