@@ -6,7 +6,7 @@
 // production build (median of repeated requests), and ends with one line:
 // `summaries job_s=<n> page_ms=<n>`.
 import { execFileSync } from "node:child_process";
-import { cpSync, existsSync, rmSync } from "node:fs";
+import { cpSync, existsSync, readdirSync, readFileSync, rmSync } from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import { performance } from "node:perf_hooks";
@@ -132,8 +132,28 @@ if (!reuse) {
 const { rebuildAllSummaries } = await import("#app/models/weekly-summary.server.ts");
 await db.deleteFrom("weekly_summary").execute();
 console.log(`load average before measuring: ${os.loadavg().map((x) => x.toFixed(2)).join(" ")}`);
+// CPU time spent by this database's server processes (their titles name the database) and by this
+// process, besides the wall time: on a machine shared with other work the CPU seconds say what the
+// job costs, the wall time what it took.
+function dbCpuSeconds() {
+  let ticks = 0;
+  for (const pid of readdirSync("/proc").filter((d) => /^\d+$/.test(d))) {
+    try {
+      if (!readFileSync(`/proc/${pid}/cmdline`, "latin1").includes(DB_NAME)) continue;
+      const fields = readFileSync(`/proc/${pid}/stat`, "latin1").split(") ")[1].split(" ");
+      ticks += Number(fields[11]) + Number(fields[12]); // utime, stime (proc(5))
+    } catch {
+      // the process ended meanwhile
+    }
+  }
+  return ticks / 100; // USER_HZ is 100 on Linux
+}
+const cpu0 = { db: dbCpuSeconds(), node: process.cpuUsage() };
 const job = await rebuildAllSummaries();
-console.log(`summaries: ${job.weeks} site-weeks for ${job.sites} sites in ${job.seconds.toFixed(2)} s`);
+const cpuDb = dbCpuSeconds() - cpu0.db;
+const nodeUsage = process.cpuUsage(cpu0.node);
+const cpuNode = (nodeUsage.user + nodeUsage.system) / 1e6;
+console.log(`summaries: ${job.weeks} site-weeks for ${job.sites} sites in ${job.seconds.toFixed(2)} s wall time; CPU ${cpuDb.toFixed(2)} s in PostgreSQL + ${cpuNode.toFixed(2)} s in Node (two at a time on 2 cores: ≈ ${((cpuDb + cpuNode) / 2).toFixed(1)} s on an idle machine)`);
 
 if (process.env.BENCH_JOB_ONLY) {
   await db.destroy();

@@ -102,16 +102,20 @@ function medianOf(sorted: readonly number[]): number | null {
  */
 export function senSlope(points: readonly { x: number; y: number }[]): { slope: number; intercept: number } | null {
   const p = points.filter((q) => Number.isFinite(q.x) && Number.isFinite(q.y));
-  const slopes: number[] = [];
+  // A typed array sorts numerically without a comparator: several times faster for the ~12,000
+  // slopes of three years of weekly medians.
+  const slopes = new Float64Array((p.length * (p.length - 1)) / 2);
+  let k = 0;
   for (let i = 0; i < p.length - 1; i++) {
     for (let j = i + 1; j < p.length; j++) {
       const dx = p[j].x - p[i].x;
-      if (dx !== 0) slopes.push((p[j].y - p[i].y) / dx);
+      if (dx !== 0) slopes[k++] = (p[j].y - p[i].y) / dx;
     }
   }
-  if (!slopes.length) return null;
-  slopes.sort((a, b) => a - b);
-  const slope = medianOf(slopes)!;
+  if (k === 0) return null;
+  const sorted = slopes.subarray(0, k).sort();
+  const mid = k >> 1;
+  const slope = k % 2 ? sorted[mid] : (sorted[mid - 1] + sorted[mid]) / 2;
   const mx = medianOf(p.map((q) => q.x).sort((a, b) => a - b))!;
   const my = medianOf(p.map((q) => q.y).sort((a, b) => a - b))!;
   return { slope, intercept: my - slope * mx };
