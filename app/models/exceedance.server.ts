@@ -143,16 +143,19 @@ export type ReviewInput = {
 
 type Reviewed = { outcome: ExceedanceOutcome | null; comment: string; status: ExceedanceStatus; readings_flagged: number };
 
-/** The stretch of readings an event covers (its start to its end, or its last reading while ongoing). */
-function spanOf(e: { started_at: Date; ended_at: Date | null; last_reading_at: Date }) {
-  return { from: e.started_at, to: e.ended_at ?? e.last_reading_at };
+/**
+ * The readings an event covers: its first reading to its last one. The reading that ended it (back
+ * past the clear level) is not part of it.
+ */
+function spanOf(e: { started_at: Date; last_reading_at: Date }) {
+  return { from: e.started_at, to: e.last_reading_at };
 }
 
 /**
  * Sets the sensor flag on the readings of an event that have no flag yet; raw values stay as they
  * are. Returns how many readings were flagged.
  */
-async function flagReadings(trx: Transaction<DB>, e: { site_id: string; started_at: Date; ended_at: Date | null; last_reading_at: Date }) {
+async function flagReadings(trx: Transaction<DB>, e: { site_id: string; started_at: Date; last_reading_at: Date }) {
   const { from, to } = spanOf(e);
   const r = await trx
     .updateTable("readings")
@@ -166,7 +169,7 @@ async function flagReadings(trx: Transaction<DB>, e: { site_id: string; started_
 }
 
 /** Takes the sensor flag off an event's readings, except where another flagged event still covers them. */
-async function unflagReadings(trx: Transaction<DB>, e: { id: string; site_id: string; started_at: Date; ended_at: Date | null; last_reading_at: Date }) {
+async function unflagReadings(trx: Transaction<DB>, e: { id: string; site_id: string; started_at: Date; last_reading_at: Date }) {
   const { from, to } = spanOf(e);
   const r = await sql`
     update readings r set quality_flag = null
@@ -174,7 +177,7 @@ async function unflagReadings(trx: Transaction<DB>, e: { id: string; site_id: st
       and not exists (
         select 1 from exceedance o
         where o.site_id = r.site_id and o.id <> ${e.id} and o.readings_flagged > 0
-          and r.time >= o.started_at and r.time <= coalesce(o.ended_at, o.last_reading_at))`.execute(trx);
+          and r.time >= o.started_at and r.time <= o.last_reading_at)`.execute(trx);
   return Number(r.numAffectedRows ?? 0);
 }
 

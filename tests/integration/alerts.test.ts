@@ -310,19 +310,20 @@ describe("reviewing an event", () => {
     });
     expect(res.status).toBe(302);
     const reviewed = await db.selectFrom("exceedance").selectAll().where("id", "=", event.id).executeTakeFirstOrThrow();
-    expect(reviewed).toMatchObject({ status: "closed", outcome: "sensor-fault", comment: "Probe <fouled> by weed", readings_flagged: 4, closed_by: people.officer.id });
-    // 01:00 (start) to 01:00… 04:00 is the first reading back at or below the clear level: 4 readings, raw values untouched.
+    expect(reviewed).toMatchObject({ status: "closed", outcome: "sensor-fault", comment: "Probe <fouled> by weed", readings_flagged: 3, closed_by: people.officer.id });
+    // The event's readings are 00:15–00:45 (1500, 1600, 1550); 600 at 01:00 ended it and is not
+    // part of it. Raw values are untouched.
     const flagged = await db.selectFrom("readings").select(["time", "sc25_us_cm", "quality_flag"]).where("site_id", "=", siteId).orderBy("time").execute();
-    expect(flagged.map((r) => r.quality_flag)).toEqual([null, "sensor", "sensor", "sensor", "sensor", null]);
+    expect(flagged.map((r) => r.quality_flag)).toEqual([null, "sensor", "sensor", "sensor", null, null]);
     expect(flagged.map((r) => r.sc25_us_cm)).toEqual([500, 1500, 1600, 1550, 600, 500]);
     const audit = await db.selectFrom("exceedance_audit").selectAll().where("exceedance_id", "=", event.id).orderBy("id").execute();
     expect(audit.map((a) => a.action)).toEqual(["detected", "closed"]);
     expect(audit[1].person_id).toBe(people.officer.id);
     expect(audit[1].before).toEqual({ outcome: null, comment: "", status: "open", readings_flagged: 0 });
-    expect(audit[1].after).toEqual({ outcome: "sensor-fault", comment: "Probe <fouled> by weed", status: "closed", readings_flagged: 4 });
+    expect(audit[1].after).toEqual({ outcome: "sensor-fault", comment: "Probe <fouled> by weed", status: "closed", readings_flagged: 3 });
     // Summaries and detection catch up with the flag: readings-changed is queued for the event's stretch.
     const queued = await queuedChanges(siteId);
-    expect(queued).toContainEqual({ siteId, fromMs: event.started_at.getTime(), toMs: event.ended_at!.getTime(), reason: "manual" });
+    expect(queued).toContainEqual({ siteId, fromMs: event.started_at.getTime(), toMs: event.last_reading_at.getTime(), reason: "manual" });
     // Re-running detection leaves the reviewed event alone (its readings are now left out).
     const again = await detectExceedances({ siteId, ...range, reason: "manual" }, { sendEmail: false });
     expect(again).toMatchObject({ inserted: 0, withdrawn: 0 });

@@ -32,6 +32,14 @@ const THRESHOLD = "#8f3422";
 const CLEAR = "#25633d";
 const SHADE = "rgba(178, 68, 46, 0.14)";
 
+/** [lo, hi] widened to multiples of a round step a tenth of a power of ten of the span. */
+function niceExtent(lo: number, hi: number): [number, number] {
+  if (!Number.isFinite(lo) || !Number.isFinite(hi)) return [lo, hi];
+  const span = hi - lo || Math.abs(hi) || 1;
+  const step = 10 ** Math.floor(Math.log10(span)) / 2;
+  return [Math.floor(lo / step) * step, Math.ceil(hi / step) * step];
+}
+
 function clock(ms: number, timeZone: string) {
   return new Intl.DateTimeFormat("en-GB", { timeZone, day: "numeric", month: "short", hour: "2-digit", minute: "2-digit", hourCycle: "h23" }).format(ms);
 }
@@ -75,8 +83,9 @@ export function EventChart({ siteId, parameter, parameterLabel, unit, fromMs, to
         nameTextStyle: { color: AXIS, align: "right" },
         axisLabel: { color: AXIS },
         splitLine: { lineStyle: { color: GRID } },
-        min: (v: { min: number }) => Math.min(v.min, ...lines.map((l) => l.value)),
-        max: (v: { max: number }) => Math.max(v.max, ...lines.map((l) => l.value)),
+        // The data and every level line on the axis, with round ends (clean labels).
+        min: (v: { min: number; max: number }) => niceExtent(Math.min(v.min, ...lines.map((l) => l.value)), Math.max(v.max, ...lines.map((l) => l.value)))[0],
+        max: (v: { min: number; max: number }) => niceExtent(Math.min(v.min, ...lines.map((l) => l.value)), Math.max(v.max, ...lines.map((l) => l.value)))[1],
       },
       tooltip: { trigger: "axis", confine: true, valueFormatter: (v: number) => (v === null || v === undefined ? "—" : `${Math.round(v * 100) / 100} ${unit}`) },
       dataZoom: [{ type: "inside", filterMode: "none" }],
