@@ -4,7 +4,8 @@ import { gradeText, percentText, WEEK_STATUS_LABELS, WEEK_STATUS_RANK } from "#a
 import { db } from "#app/utils/db.server.ts";
 import { getEnv } from "#app/utils/env.server.ts";
 import { escapeHtml, sendMail } from "#app/utils/mail.server.ts";
-import { loadWeekTable, type Change, type SiteWeekRow, type WeekTable } from "./summary-read.server.ts";
+import { loadWeekTable, resolveWeek, type Change, type SiteWeekRow, type WeekTable } from "./summary-read.server.ts";
+import { summariseWeeks } from "./weekly-summary.server.ts";
 
 // The weekly e-mail digest: every manager and everyone who opted in (person.weekly_digest) gets the
 // week's table from the summary cache, the sites that need a look first, and links into Ripplemark.
@@ -184,7 +185,11 @@ export type DigestResult = { week: string; sent: number; skipped: number; failed
  */
 export async function sendWeeklyDigest(options: { week?: string | null; now?: Date } = {}): Promise<DigestResult> {
   const env = getEnv();
-  const table = await loadWeekTable(options.week ?? null, options.now);
+  // Bring the week's cache up to date first (a few milliseconds a site): events classified or
+  // periods approved since the last readings change then show in the mail as they stand.
+  const { week } = await resolveWeek(options.week ?? null, options.now);
+  for (const site of await db.selectFrom("site").select("id").execute()) await summariseWeeks(site.id, week, week);
+  const table = await loadWeekTable(week, options.now);
   const result: DigestResult = { week: table.week, sent: 0, skipped: 0, failed: [] };
   if (!table.rows.some((r) => r.figures)) return result; // nothing summarised for that week: nothing to say
   for (const person of await digestRecipients()) {

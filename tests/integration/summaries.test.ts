@@ -336,6 +336,8 @@ describe("pages, export and digest", () => {
 
   it("the digest reaches managers and those who opted in once per week, with the week's figures", async () => {
     const mailbox = getEnv().MAILBOX_URL!;
+    // An officer classifies the open event after the week was cached: the digest refreshes the week first.
+    if (hasExceedanceTable) await sql`update exceedance set outcome = 'sensor-fault' where site_id = ${SITE} and outcome is null`.execute(db);
     const result = await sendWeeklyDigest({ week: "2025-03-10" });
     expect(result.sent).toBe(2); // the manager, and the officer who opted in; not the technician or admin
     const subject = `Weekly site digest: Week 11 of 2025 · 10–16 Mar 2025 · ${ORG}`; // weekLabel (weeks.ts)
@@ -347,6 +349,7 @@ describe("pages, export and digest", () => {
     expect(mail.text).toContain("Change from last week: +73 µS/cm (+16.2 %)"); // 72.5 shown to the unit
     expect(mail.text).toContain("Completeness: 72 %");
     expect(mail.text).toContain("Grade: Fair");
+    if (hasExceedanceTable) expect(mail.text).toContain("Exceedance events: 2 (sensor fault 1, water quality 1)");
     expect(mail.text).toContain(`${getEnv().APP_ORIGIN}/summaries?week=2025-W11`);
     expect(mail.text).toMatch(/screening estimates/);
     expect(mail.html).toContain("Tollmere &lt;Weir&gt; &amp; &quot;Gauge&quot;");
