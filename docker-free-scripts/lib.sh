@@ -70,7 +70,10 @@ app_env() {
   export S3_ACCESS_KEY_ID="${S3_ACCESS_KEY_ID:-S3RVER}"
   export S3_SECRET_ACCESS_KEY="${S3_SECRET_ACCESS_KEY:-S3RVER}"
   export S3_FAKE_DIR="${S3_FAKE_DIR:-$DATA_DIR/s3}"
-  export S3_CORS_ORIGINS="${S3_CORS_ORIGINS:-$APP_ORIGIN,http://localhost:$APP_PORT,http://127.0.0.1:$E2E_APP_PORT}"
+  # The app, and the browser tests' app instances (each run takes a free port in 3211–3219).
+  local e2e_origins=""
+  for p in 3211 3212 3213 3214 3215 3216 3217 3218 3219; do e2e_origins="$e2e_origins,http://127.0.0.1:$p"; done
+  export S3_CORS_ORIGINS="${S3_CORS_ORIGINS:-$APP_ORIGIN,http://localhost:$APP_PORT$e2e_origins}"
   export SMTP_HOST=127.0.0.1
   export SMTP_PORT="$SMTP_FAKE_PORT"
   export SMTP_FAKE_DIR="${SMTP_FAKE_DIR:-$DATA_DIR/mail}"

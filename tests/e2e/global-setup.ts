@@ -12,6 +12,18 @@ import { applyTestEnv, databaseUrl } from "../support/env.ts";
 const root = path.resolve(import.meta.dirname, "../..");
 const children: ChildProcess[] = [];
 
+/** The first port in [from, to] nobody listens on (parallel runs on one machine do not collide). */
+async function freePort(from: number, to: number) {
+  const net = await import("node:net");
+  for (let p = from; p <= to; p++) {
+    const free = await new Promise<boolean>((resolve) => {
+      const srv = net.createServer().once("error", () => resolve(false)).listen(p, "127.0.0.1", () => srv.close(() => resolve(true)));
+    });
+    if (free) return p;
+  }
+  throw new Error(`no free port in ${from}–${to} for the browser tests' app`);
+}
+
 async function waitFor(url: string, ms: number) {
   const end = Date.now() + ms;
   while (Date.now() < end) {
@@ -28,22 +40,27 @@ export default async function setup(project: TestProject) {
   const runId = newRunId();
   const template = await prepareTemplate(runId);
   const name = await createTestDatabase(template, "rm_e2e");
-  const port = Number(process.env.E2E_APP_PORT ?? 3211);
+  const port = process.env.E2E_APP_PORT ? Number(process.env.E2E_APP_PORT) : await freePort(3211, 3219);
   const origin = `http://127.0.0.1:${port}`;
   process.env.APP_ORIGIN = origin;
   applyTestEnv(name);
   process.env.NODE_ENV = "production";
   const db = createDb(databaseUrl(name), 2);
-  // A month of demo readings keeps the set-up quick while every page has data to show.
-  await seedDemo(db, { readingsDays: 30 });
+  // 160 days of demo readings: quick enough to load, and they hold the whole HR5 drift episode
+  // (from July to the September visit) with its correction awaiting review, and the AB8
+  // borehole's ongoing TDS exceedance.
+  await seedDemo(db, { readingsDays: 160 });
   await db.destroy();
 
   const env = { ...process.env, PORT: String(port), HOST: "127.0.0.1" };
   // Server and worker output goes to .data/e2e-*.log (kept for reading after a failure).
   mkdirSync(path.join(root, ".data"), { recursive: true });
   const logTo = (name: string) => openSync(path.join(root, ".data", `e2e-${name}.log`), "w");
-  const app = spawn(process.execPath, [path.join(root, "node_modules/@react-router/serve/bin.js"), "./build/server/index.js"], {
-    cwd: root,
+  // TEST_BUILD_DIR: serve a build kept apart from build/ (react-router-serve finds the client
+  // assets relative to its working folder, so it runs in the folder holding that build).
+  const buildDir = process.env.TEST_BUILD_DIR ? path.resolve(process.env.TEST_BUILD_DIR) : path.join(root, "build");
+  const app = spawn(process.execPath, [path.join(root, "node_modules/@react-router/serve/bin.js"), path.join(buildDir, "server/index.js")], {
+    cwd: path.dirname(buildDir),
     env,
     stdio: ["ignore", logTo("app"), logTo("app")],
   });
