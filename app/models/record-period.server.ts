@@ -3,6 +3,7 @@ import type { DB, GradeName } from "#db/schema.ts";
 import { scGrade, totalCorrectionPercent } from "#app/lib/quality/grades.ts";
 import { db } from "#app/utils/db.server.ts";
 import { recordChange } from "./record-audit.server.ts";
+import { enqueueSummariseWeeks } from "./weekly-summary.server.ts";
 
 type Executor = Kysely<DB> | Transaction<DB>;
 
@@ -131,6 +132,8 @@ export async function approvePeriod(actorId: string, periodId: string, siteId: s
     if (Number(pending.n) > 0) throw new PeriodRefused("Approve or reject the proposed corrections in this period first.", 409);
     const now = new Date();
     await trx.updateTable("record_period").set({ approved_by: actorId, approved_at: now, locked: true, updated_at: now }).where("id", "=", p.id).execute();
+    // The weekly summaries of the period's weeks show approval: recompute them.
+    await enqueueSummariseWeeks(p.site_id, p.period_start.getTime(), p.period_end.getTime(), trx);
     await recordChange(
       { actorId, siteId: p.site_id, entity: "record_period", entityId: p.id, action: "approve", before: { approved: false }, after: { approved: true, grade: p.grade } },
       trx,
@@ -147,6 +150,7 @@ export async function reopenPeriod(actorId: string, periodId: string, siteId: st
     if (!p) throw new PeriodRefused("No such period of record.", 404);
     if (!p.locked) return { changed: false };
     await trx.updateTable("record_period").set({ approved_by: null, approved_at: null, locked: false, updated_at: new Date() }).where("id", "=", p.id).execute();
+    await enqueueSummariseWeeks(p.site_id, p.period_start.getTime(), p.period_end.getTime(), trx);
     await recordChange(
       { actorId, siteId: p.site_id, entity: "record_period", entityId: p.id, action: "reopen", before: { approved: true }, after: { approved: false }, reason, inLockedPeriod: true },
       trx,

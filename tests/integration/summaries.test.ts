@@ -18,6 +18,7 @@ import { runSummariseWeeksJob, WEEKLY_SUMMARIES_STEP } from "#app/jobs/weekly-su
 import { rebuildAllSummaries, summariseWeeks } from "#app/models/weekly-summary.server.ts";
 import { loadWeekTable } from "#app/models/summary-read.server.ts";
 import { sendWeeklyDigest } from "#app/models/weekly-digest.server.ts";
+import { approvePeriod } from "#app/models/record-period.server.ts";
 import { listMessages, waitForMessage } from "#fakes/smtp/client.ts";
 import { request, signIn, type Jar } from "../support/app.ts";
 import { createPeople, TEST_PASSWORD } from "../support/people.ts";
@@ -284,6 +285,21 @@ describe("the cache follows the readings", () => {
       where site_id = ${SITE} and sc25_us_cm = 560`.execute(db);
     await summariseWeeks(SITE, "2025-03-10", "2025-03-10");
     expect((await row(SITE, "2025-03-10"))!.sc25_mean).toBeCloseTo(520, 9);
+  });
+
+  it("approving a period of record queues its weeks, and the job marks them approved", async () => {
+    const period = await db.selectFrom("record_period").select("id").where("site_id", "=", SITE).where("grade", "=", "poor").executeTakeFirstOrThrow();
+    expect((await row(SITE, "2025-03-03"))!.approved).toBe(false);
+    await approvePeriod(people.officer.id, period.id, SITE);
+    const jobs = await sql<{ payload: { siteId: string; fromWeek: string; toWeek: string } }>`
+      select j.payload from graphile_worker._private_jobs j join graphile_worker._private_tasks t on t.id = j.task_id
+      where t.identifier = 'summarise-weeks'`.execute(db);
+    // The period runs from Thursday 20 February to Saturday 8 March 2025: the weeks of Monday 17 February to Monday 3 March.
+    expect(jobs.rows.map((j) => j.payload)).toEqual([{ siteId: SITE, fromWeek: "2025-02-17", toWeek: "2025-03-03" }]);
+    await runOnce({ connectionString: getEnv().DATABASE_URL }, { "summarise-weeks": async (payload) => void (await runSummariseWeeksJob(payload)) });
+    // Week A overlaps this period and the approved "fair" one: approved now, graded by the worse of the two.
+    expect((await row(SITE, "2025-03-03"))!.approved).toBe(true);
+    expect((await row(SITE, "2025-03-03"))!.grade).toBe("poor");
   });
 
   it("a full rebuild writes every week with data or a deployed logger, and is repeatable", async () => {
