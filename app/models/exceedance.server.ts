@@ -3,6 +3,7 @@ import type { AlertParameterName, DB, ExceedanceOutcome, ExceedanceStatus } from
 import { SENSOR_FLAG } from "#app/lib/quality/exceedance-words.ts";
 import { db } from "#app/utils/db.server.ts";
 import { enqueue } from "#app/utils/jobs.server.ts";
+import { enqueueSummariseWeeks } from "./weekly-summary.server.ts";
 import type { SortDir } from "#app/utils/table-params.ts";
 
 type Executor = typeof db | Transaction<DB>;
@@ -240,6 +241,9 @@ export async function reviewExceedance(actorId: string, id: string, input: Revie
     if (flagged || unflagged) {
       const { from, to } = spanOf(e);
       await enqueue("readings-changed", { siteId: e.site_id, fromMs: from.getTime(), toMs: to.getTime(), reason: "manual" }, { maxAttempts: 10 }, trx);
+    } else if (changed.includes("outcome")) {
+      // The weekly summary of the week the event began counts events by outcome.
+      await enqueueSummariseWeeks(e.site_id, e.started_at.getTime(), e.started_at.getTime(), trx);
     }
     return { outcome: closing ? ("closed" as const) : ("saved" as const), flagged, unflagged };
   });
