@@ -34,6 +34,7 @@ import { db } from "#app/utils/db.server.ts";
 import { queueAlertEmail } from "./alert-email.server.ts";
 import type { ReadingsChange, ReadingsChangedStep } from "./readings-changed.server.ts";
 import { notifyAboutEvent } from "#app/models/notification.server.ts";
+import { enqueueSummariseWeeks } from "#app/models/weekly-summary.server.ts";
 
 const HOUR_MS = 3_600_000;
 const DAY_MS = 86_400_000;
@@ -68,7 +69,23 @@ export type DetectOptions = {
   ruleIds?: readonly string[];
 };
 
-export type DetectSummary = { rules: number; inserted: number; updated: number; withdrawn: number; unchanged: number };
+export type DetectSummary = {
+  rules: number;
+  inserted: number;
+  updated: number;
+  withdrawn: number;
+  unchanged: number;
+  /** The stretch of the events that were added, changed or withdrawn (null when none was). */
+  changedFromMs: number | null;
+  changedToMs: number | null;
+};
+
+const NOTHING: DetectSummary = { rules: 0, inserted: 0, updated: 0, withdrawn: 0, unchanged: 0, changedFromMs: null, changedToMs: null };
+
+function widen(s: DetectSummary, fromMs: number, toMs: number) {
+  s.changedFromMs = s.changedFromMs === null ? fromMs : Math.min(s.changedFromMs, fromMs);
+  s.changedToMs = s.changedToMs === null ? toMs : Math.max(s.changedToMs, toMs);
+}
 
 export const detectExceedancesStep: ReadingsChangedStep = {
   name: "detect-exceedances",
@@ -310,7 +327,7 @@ async function detectRule(
   options: DetectOptions,
   load: Loader,
 ): Promise<DetectSummary> {
-  const summary: DetectSummary = { rules: 1, inserted: 0, updated: 0, withdrawn: 0, unchanged: 0 };
+  const summary: DetectSummary = { ...NOTHING, rules: 1 };
   const rc = parseRuleCondition(rule.condition, rule.params);
   if (!rc || !(rule.parameter in COLUMN)) {
     console.error(`[detect] rule ${rule.id} has settings that do not fit its condition; skipped`);
@@ -387,6 +404,7 @@ async function detectRule(
         })
         .execute();
       summary.updated++;
+      widen(summary, Math.min(s.startMs, event.startMs), Math.max(s.endMs ?? s.lastMs, event.endMs ?? event.lastMs));
     }
 
     for (const s of plan.withdrawals) {
@@ -396,6 +414,7 @@ async function detectRule(
         .values({ exceedance_id: s.id, person_id: null, action: "withdrawn", before: JSON.stringify({ status: s.status }), after: JSON.stringify({ status: "withdrawn" }) })
         .execute();
       summary.withdrawn++;
+      widen(summary, s.startMs, s.endMs ?? s.lastMs);
     }
 
     for (const event of plan.inserts) {
@@ -420,6 +439,7 @@ async function detectRule(
       await notifyAboutEvent(trx, { exceedanceId: row.id, siteId: site.id, roles: rule.notify_roles });
       if (rule.email && options.sendEmail) await queueAlertEmail(trx, rule, row.id);
       summary.inserted++;
+      widen(summary, event.startMs, event.endMs ?? event.lastMs);
     }
   });
   return summary;
@@ -427,7 +447,7 @@ async function detectRule(
 
 /** Evaluates the rules covering a site over a changed stretch of its readings. */
 export async function detectExceedances(change: ReadingsChange, options: DetectOptions): Promise<DetectSummary> {
-  const total: DetectSummary = { rules: 0, inserted: 0, updated: 0, withdrawn: 0, unchanged: 0 };
+  const total: DetectSummary = { ...NOTHING };
   const site = await db
     .selectFrom("site")
     .select(["id", "kind", "compensation_method", "alpha_per_c", "reference_c"])
@@ -447,6 +467,7 @@ export async function detectExceedances(change: ReadingsChange, options: DetectO
     total.updated += s.updated;
     total.withdrawn += s.withdrawn;
     total.unchanged += s.unchanged;
+    if (s.changedFromMs !== null && s.changedToMs !== null) widen(total, s.changedFromMs, s.changedToMs);
   }
   return total;
 }
@@ -458,7 +479,7 @@ export async function detectOverSiteHistory(siteId: string, options: DetectOptio
     .select((eb) => [eb.fn.min("time").as("first"), eb.fn.max("time").as("last")])
     .where("site_id", "=", siteId)
     .executeTakeFirst();
-  if (!range?.first || !range.last) return { rules: 0, inserted: 0, updated: 0, withdrawn: 0, unchanged: 0 };
+  if (!range?.first || !range.last) return { ...NOTHING };
   return detectExceedances(
     { siteId, fromMs: new Date(range.first as Date).getTime(), toMs: new Date(range.last as Date).getTime(), reason: "manual" },
     options,
@@ -473,5 +494,9 @@ export async function evaluateRuleOverHistory(ruleId: string) {
   const rule = await db.selectFrom("alert_rule").select(["id", "enabled"]).where("id", "=", ruleId).executeTakeFirst();
   if (!rule?.enabled) return;
   const sites = await db.selectFrom("site").select("id").orderBy("code").execute();
-  for (const s of sites) await detectOverSiteHistory(s.id, { sendEmail: false, ruleIds: [ruleId] });
+  for (const s of sites) {
+    const result = await detectOverSiteHistory(s.id, { sendEmail: false, ruleIds: [ruleId] });
+    // The weekly summaries count events: bring the weeks whose events changed up to date.
+    if (result.changedFromMs !== null && result.changedToMs !== null) await enqueueSummariseWeeks(s.id, result.changedFromMs, result.changedToMs);
+  }
 }

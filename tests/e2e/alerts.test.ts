@@ -68,6 +68,30 @@ async function alertMail(ruleName: string, timeoutMs: number): Promise<StoredMes
 }
 
 describe("alert rules, exceedances and e-mail", () => {
+  it("shows each role the alert pages it may use in the navigation", async () => {
+    const expected: Record<string, { shows: string[]; hides: string[] }> = {
+      technician: { shows: ["Alert rules"], hides: ["Exceedances"] },
+      manager: { shows: ["Alert rules"], hides: ["Exceedances"] },
+      officer: { shows: ["Alert rules", "Exceedances"], hides: [] },
+    };
+    for (const [role, { shows, hides }] of Object.entries(expected)) {
+      const person = DEMO_PEOPLE.find((p) => p.role === role)!;
+      const page = await browser.page();
+      await signInAs(page, person.email, person.password);
+      try {
+        await expect.poll(() => page.getByTestId("current-user").textContent()).toContain(person.name);
+        const nav = page.getByRole("navigation", { name: "Main" });
+        for (const label of shows) await expect.poll(() => nav.getByRole("link", { name: label, exact: true }).count(), { message: `${role}: ${label}` }).toBe(1);
+        for (const label of hides) expect(await nav.getByRole("link", { name: label, exact: true }).count(), `${role}: ${label}`).toBe(0);
+        expect(await page.getByTestId("notifications-link").count()).toBe(1);
+      } finally {
+        // The browser context is shared by the file's tests: never leave a session behind.
+        await page.getByRole("button", { name: "Sign out" }).click();
+        await page.waitForURL((u) => u.pathname.startsWith("/sign-in"));
+      }
+    }
+  });
+
   it("an officer sets a rule, the e-mail about the event arrives, and the officer classifies the event", async () => {
     const page = await browser.page();
     const consoleErrors: string[] = [];

@@ -61,6 +61,20 @@ beforeAll(async () => {
   technicianJar = await signIn("technician@test.example", TEST_PASSWORD);
 });
 
+describe("the readings-changed job", () => {
+  it("runs detection after the corrections step and before the summaries", async () => {
+    const { READINGS_CHANGED_STEPS } = await import("#app/jobs/readings-changed.server.ts");
+    const names = READINGS_CHANGED_STEPS.map((s) => s.name);
+    const detect = names.indexOf("detect-exceedances");
+    expect(detect).toBeGreaterThanOrEqual(0);
+    // Corrections change the values detection reads; summaries count the events detection writes.
+    for (const [i, name] of names.entries()) {
+      if (/correction/.test(name)) expect(i, name).toBeLessThan(detect);
+      if (/summar/.test(name)) expect(i, name).toBeGreaterThan(detect);
+    }
+  });
+});
+
 describe("detection through the upload path", () => {
   it("keeps an exceedance spanning two overlapping files as one event, and re-running changes nothing", async () => {
     const { siteId, loggerId } = await createSite(db, { code: "ALR1" });
@@ -279,6 +293,22 @@ describe("who sees and changes rules", () => {
     const html = await (await request(`/alert-rules/${id}`, { jar: jars.officer })).text();
     expect(html).toContain('value="2.5"');
     expect(html).toContain('value="1.5"');
+  });
+
+  it("re-checks a saved rule over the record of the sites it covers, without e-mail, and queues the touched weeks' summaries", async () => {
+    const { evaluateRuleOverHistory } = await import("#app/jobs/detect-exceedances.server.ts");
+    const { siteId, loggerId } = await createSite(db, { code: "ALR7" });
+    await insertReadings(db, { siteId, loggerId, startIso: "2025-06-02T00:00:00Z", sc: [400, 400, 900, 950, 400, 400] });
+    const ruleId = await createRule(db, { params: { threshold: 800, clear: 700, minDurationMin: 0 }, siteIds: [siteId], email: true });
+    await evaluateRuleOverHistory(ruleId);
+    const events = await eventsOf(ruleId);
+    expect(events.map((e) => [e.started_at.toISOString(), e.ended_at?.toISOString()])).toEqual([["2025-06-02T00:30:00.000Z", "2025-06-02T01:00:00.000Z"]]);
+    expect(await db.selectFrom("email_send").select("id").where("rule_id", "=", ruleId).execute()).toEqual([]);
+    const { rows } = await sql<{ payload: { siteId: string; fromWeek: string; toWeek: string } }>`
+      select j.payload from graphile_worker._private_jobs j join graphile_worker._private_tasks t on t.id = j.task_id
+      where t.identifier = 'summarise-weeks' and j.payload->>'siteId' = ${siteId}`.execute(db);
+    // 2 June 2025 is a Monday: the week it begins.
+    expect(rows.map((r) => r.payload)).toContainEqual({ siteId, fromWeek: "2025-06-02", toWeek: "2025-06-02" });
   });
 
   it("refuses a clear level on the wrong side of the threshold, naming the field", async () => {
