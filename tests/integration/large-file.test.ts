@@ -53,12 +53,12 @@ beforeAll(async () => {
     rows++;
     if (chunk.length > 1 << 20) {
       bytes += chunk.length;
-      if (!out.write(chunk)) await new Promise((r) => out.once("drain", r));
+      if (!out.write(chunk)) await new Promise<void>((r) => out.once("drain", () => r()));
       chunk = "";
     }
   }
   out.end(chunk);
-  await new Promise((r) => out.once("finish", r));
+  await new Promise<void>((r) => out.once("finish", () => r()));
 }, 120_000);
 
 describe("a 100 MB file", () => {
