@@ -89,14 +89,14 @@ export async function seedDemoReadings(db: Kysely<DB>, options: DemoReadingsOpti
   log(`demo readings: ${files.length} logger files, ${rows.toLocaleString("en")} readings`);
   // The field visits that go with these readings, their proposed corrections and the approvals.
   await seedDemoVisits(db, events, { log });
-  // The weekly summaries of the whole demo record (after detection, so they count its events).
-  await rebuildDemoSummaries(log);
   // The alert rules over each site's whole record, as the worker would after each file: events and
   // in-app notifications (no e-mail for this back-fill).
   const { detectOverSiteHistory } = await import("#app/jobs/detect-exceedances.server.ts");
   let found = 0;
   for (const siteId of sites.values()) found += (await detectOverSiteHistory(siteId, { sendEmail: false })).inserted;
   log(`demo exceedances: ${found} events found by the alert rules`);
+  // The weekly summaries of the whole demo record (after detection, so they count its events).
+  await rebuildDemoSummaries(log);
   return { files: files.length, rows, events };
 }
 
