@@ -174,7 +174,8 @@ export async function summariseWeeks(siteId: string, fromWeek: string, toWeek: s
       ),
       expected as (
         select w.week_start,
-          sum(extract(epoch from least(coalesce(d.deployed_until, 'infinity'::timestamptz), w.ends_at) - greatest(d.deployed_from, w.starts_at))
+          -- Up to now at most: the week in progress expects only the readings due so far.
+          sum(greatest(0, extract(epoch from least(coalesce(d.deployed_until, 'infinity'::timestamptz), w.ends_at, now()) - greatest(d.deployed_from, w.starts_at)))
               / l.logging_interval_s) as n
         from weeks w
         join logger_deployment d on d.site_id = ${siteId} and d.deployed_from < w.ends_at and (d.deployed_until is null or d.deployed_until > w.starts_at)
@@ -240,13 +241,17 @@ export async function summariseWeeks(siteId: string, fromWeek: string, toWeek: s
   });
 }
 
-/** The weeks a site has data for: from the week of its first reading (or deployment) to that of its last. */
+/**
+ * The weeks a site has data for: from the week of its first reading or deployment to the week of its
+ * last reading, or this week while a logger is still deployed (so weeks a deployed logger sent nothing
+ * show as 0 % complete).
+ */
 async function siteWeekSpan(siteId: string, tz: string): Promise<WeekRange | null> {
   const row = (
     await sql<{ first: Date | null; last: Date | null }>`
       select least((select min(time) from readings where site_id = ${siteId}), (select min(deployed_from) from logger_deployment where site_id = ${siteId})) as first,
         greatest((select max(time) from readings where site_id = ${siteId}),
-          (select max(coalesce(deployed_until, least(now(), (select max(time) from readings where site_id = ${siteId})))) from logger_deployment where site_id = ${siteId})) as last`.execute(db)
+          (select least(now(), max(coalesce(deployed_until, now()))) from logger_deployment where site_id = ${siteId})) as last`.execute(db)
   ).rows[0];
   if (!row?.first || !row.last) return null;
   return { fromWeek: weekStartAt(row.first, tz), toWeek: weekStartAt(row.last, tz) };

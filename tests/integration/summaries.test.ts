@@ -21,6 +21,7 @@ import { sendWeeklyDigest } from "#app/models/weekly-digest.server.ts";
 import { approvePeriod } from "#app/models/record-period.server.ts";
 import { reviewExceedance } from "#app/models/exceedance.server.ts";
 import { listMessages, waitForMessage } from "#fakes/smtp/client.ts";
+import { weekStartAt } from "#app/lib/series/weeks.ts";
 import { request, signIn, type Jar } from "../support/app.ts";
 import { createPeople, TEST_PASSWORD } from "../support/people.ts";
 
@@ -323,6 +324,14 @@ describe("the cache follows the readings", () => {
     expect(first.weeks).toBe(again.weeks);
     expect(Number(n1.n)).toBe(Number(n2.n));
     expect((await row(SITE, "2025-03-03"))!.sc25_median).toBeCloseTo(447.5, 9);
+    // The loggers are still deployed: the rebuild runs to this week, whose expected readings are those
+    // due so far (900 s apart since Monday 00:00 at the site), none of them received.
+    const thisWeek = weekStartAt(new Date(), "Europe/London");
+    const now = await row(DST_SITE, thisWeek);
+    expect(now!.readings).toBe(0);
+    const due = (Date.now() - now!.starts_at.getTime()) / 900_000;
+    expect(now!.readings_expected).toBeGreaterThan(due - 10);
+    expect(now!.readings_expected).toBeLessThanOrEqual(due + 1e-6);
   });
 });
 
