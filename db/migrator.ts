@@ -6,7 +6,9 @@ import { migrations } from "./migrations/index.ts";
 const provider: MigrationProvider = { getMigrations: async () => migrations };
 
 export function createMigrator(db: Kysely<any>) {
-  return new Migrator({ db, provider });
+  // Unordered: a database that already ran a later migration (from a branch that landed first)
+  // still takes an earlier one that arrives afterwards, instead of refusing to start.
+  return new Migrator({ db, provider, allowUnorderedMigrations: true });
 }
 
 /** Runs every pending migration; throws with the failing migration's name on error. */
