@@ -1,6 +1,7 @@
 // npm run bench:load — the overview, the series API and sign-in under 50 concurrent connections for
 // 30 s on loopback, while an ingest runs. Prints throughput and latency percentiles per endpoint.
 // Target: series API p95 ≤ 300 ms, no errors. Bounded: fixed duration, 127.0.0.1 only.
+import { WORKER_NODE_FLAGS } from "../support/worker-flags.ts";
 import { spawn, type ChildProcess } from "node:child_process";
 import { createHash } from "node:crypto";
 import { mkdirSync, openSync } from "node:fs";
@@ -73,7 +74,7 @@ children.push(
     stdio: ["ignore", openSync(path.join(root, ".data/load-app.log"), "w"), "inherit"],
   }),
 );
-children.push(spawn(process.execPath, ["--import", "tsx", "app/worker.ts"], { cwd: root, env, stdio: ["ignore", openSync(path.join(root, ".data/load-worker.log"), "w"), "inherit"] }));
+children.push(spawn(process.execPath, [...WORKER_NODE_FLAGS, "--import", "tsx", "app/worker.ts"], { cwd: root, env, stdio: ["ignore", openSync(path.join(root, ".data/load-worker.log"), "w"), "inherit"] }));
 const stop = () => children.forEach((c) => c.kill("SIGTERM"));
 process.on("exit", stop);
 await waitFor(`${ORIGIN}/api/health`, 30_000);

@@ -1,3 +1,4 @@
+import { WORKER_NODE_FLAGS } from "../support/worker-flags.ts";
 import { spawn, type ChildProcess } from "node:child_process";
 import { mkdirSync, openSync } from "node:fs";
 import path from "node:path";
@@ -66,7 +67,7 @@ export default async function setup(project: TestProject) {
   });
   children.push(app);
   if (await import("node:fs").then((fs) => fs.existsSync(path.join(root, "app/worker.ts")))) {
-    children.push(spawn(process.execPath, ["--import", "tsx", "app/worker.ts"], { cwd: root, env, stdio: ["ignore", logTo("worker"), logTo("worker")] }));
+    children.push(spawn(process.execPath, [...WORKER_NODE_FLAGS, "--import", "tsx", "app/worker.ts"], { cwd: root, env, stdio: ["ignore", logTo("worker"), logTo("worker")] }));
   }
   await waitFor(`${origin}/api/health`, 30_000);
   project.provide("baseURL", origin);
