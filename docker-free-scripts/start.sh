@@ -18,8 +18,8 @@ cleanup() { for p in "${pids[@]}"; do kill "$p" 2>/dev/null || true; done; }
 trap cleanup EXIT INT TERM
 
 if [ -f app/worker.ts ]; then
-  # Same heap cap as the tests and benchmarks (tests/support/worker-flags.ts): memory stays bounded.
-  node --max-old-space-size=160 --import tsx app/worker.ts > "$DATA_DIR/worker.log" 2>&1 &
+  # The same flags as the tests and benchmarks (tests/support/worker-flags.ts, WORKER_NODE_FLAGS).
+  node --max-old-space-size=1024 --import tsx app/worker.ts > "$DATA_DIR/worker.log" 2>&1 &
   pids+=($!)
 fi
 HOST=127.0.0.1 PORT="$APP_PORT" npx react-router-serve ./build/server/index.js > "$DATA_DIR/app.log" 2>&1 &

@@ -1,7 +1,7 @@
 // npm run bench:ingest — a 1,000,000-row logger file through the real ingest job (S3 fake →
 // papaparse → COPY → merge into PostgreSQL), against `psql \copy` of the same file into a table of
 // the same shape and keys (the practical limit of this machine).
-import { WORKER_NODE_FLAGS } from "../support/worker-flags.ts";
+import { INGEST_JOB_NODE_FLAGS } from "../support/worker-flags.ts";
 import { execFileSync, spawn } from "node:child_process";
 import { createHash, randomUUID } from "node:crypto";
 import { mkdirSync, statSync, writeFileSync, createReadStream } from "node:fs";
@@ -89,7 +89,7 @@ await db
 
 function child(...args: string[]): Promise<{ ms: number; maxRssKb: number; rows?: number; ok?: number }> {
   return new Promise((resolve, reject) => {
-    const p = spawn(process.execPath, [...WORKER_NODE_FLAGS, "--import", "tsx", path.join(root, "tests/bench/ingest-child.ts"), ...args], {
+    const p = spawn(process.execPath, [...INGEST_JOB_NODE_FLAGS, "--import", "tsx", path.join(root, "tests/bench/ingest-child.ts"), ...args], {
       cwd: root,
       env: process.env,
       stdio: ["ignore", "pipe", "inherit"],

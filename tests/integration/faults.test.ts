@@ -1,4 +1,4 @@
-import { WORKER_NODE_FLAGS } from "../support/worker-flags.ts";
+import { INGEST_JOB_NODE_FLAGS } from "../support/worker-flags.ts";
 import { spawn } from "node:child_process";
 import path from "node:path";
 import { sql } from "kysely";
@@ -45,7 +45,7 @@ function bigFile(rows: number) {
 describe("a worker killed in the middle of an ingest", () => {
   it("leaves no rows, and the retry ends correct", async () => {
     const up = await uploadFile(jar, { fileName: "killed-worker.csv", body: bigFile(400_000), siteId, loggerId, profileId });
-    const child = spawn(process.execPath, [...WORKER_NODE_FLAGS, "--import", "tsx", path.join(root, "tests/bench/ingest-child.ts"), "ingest", up.uploadId!], {
+    const child = spawn(process.execPath, [...INGEST_JOB_NODE_FLAGS, "--import", "tsx", path.join(root, "tests/bench/ingest-child.ts"), "ingest", up.uploadId!], {
       cwd: root,
       env: process.env,
       stdio: "ignore",

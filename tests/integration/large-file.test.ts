@@ -1,4 +1,4 @@
-import { WORKER_NODE_FLAGS } from "../support/worker-flags.ts";
+import { INGEST_JOB_NODE_FLAGS } from "../support/worker-flags.ts";
 import { spawn } from "node:child_process";
 import { createHash } from "node:crypto";
 import { createReadStream, createWriteStream, mkdirSync, statSync } from "node:fs";
@@ -86,7 +86,7 @@ describe("a 100 MB file", () => {
     expect(((await confirm.json()) as { status: string }).status).toBe("queued");
 
     // The worker's job, in its own process, so its peak memory is its own.
-    const child = spawn(process.execPath, [...WORKER_NODE_FLAGS, "--import", "tsx", path.join(root, "tests/bench/ingest-child.ts"), "ingest", p.uploadId], { cwd: root, env: process.env, stdio: ["ignore", "pipe", "inherit"] });
+    const child = spawn(process.execPath, [...INGEST_JOB_NODE_FLAGS, "--import", "tsx", path.join(root, "tests/bench/ingest-child.ts"), "ingest", p.uploadId], { cwd: root, env: process.env, stdio: ["ignore", "pipe", "inherit"] });
     let out = "";
     child.stdout.on("data", (d) => (out += d));
     const code = await new Promise((r) => child.once("exit", r));
