@@ -1,6 +1,7 @@
 import { data, Form, Link } from "react-router";
 import { z } from "zod";
 import type { Route } from "./+types/exceedances";
+import { FilterSelect, TableStateInputs } from "#app/components/filter-form.tsx";
 import { DataTable, type Column } from "#app/components/data-table.tsx";
 import { ALERT_PARAMETERS, PARAMETER_NAMES } from "#app/lib/quality/alert-rules.ts";
 import { formatDuration, formatPeak, OUTCOME_LABELS, OUTCOMES, STATUS_LABELS, STATUSES } from "#app/lib/quality/exceedance-words.ts";
@@ -9,7 +10,7 @@ import { siteChoices } from "#app/models/alert-rule.server.ts";
 import { countExceedances, EXCEEDANCE_SORT_KEYS, listExceedancesPage } from "#app/models/exceedance.server.ts";
 import { requireUser } from "#app/utils/auth.server.ts";
 import { REVIEW_ROLES } from "#app/utils/permissions.ts";
-import { DEFAULT_PAGE_SIZE, loadPage, parseTableParams } from "#app/utils/table-params.ts";
+import { loadPage, parseTableParams } from "#app/utils/table-params.ts";
 import { OutcomeText, StatusMark } from "./+shared/ui.tsx";
 
 export const meta: Route.MetaFunction = () => [{ title: "Exceedances · Ripplemark" }];
@@ -149,50 +150,18 @@ export default function Exceedances({ loaderData }: Route.ComponentProps) {
         its chart, classify it and close it.
       </p>
       <Form method="get" className="card flex flex-wrap items-end gap-3" aria-label="Filter exceedances">
-        {table.pageSize !== DEFAULT_PAGE_SIZE ? <input type="hidden" name="size" value={table.pageSize} /> : null}
-        {table.sort !== "started" || table.dir !== "desc" ? (
-          <>
-            <input type="hidden" name="sort" value={table.sort} />
-            <input type="hidden" name="dir" value={table.dir} />
-          </>
-        ) : null}
-        <div>
-          <label htmlFor="f-site" className="field-label">Site</label>
-          <select id="f-site" name="site" defaultValue={filter.site} className="field-input">
-            <option value="">Every site</option>
-            {sites.map((s) => (
-              <option key={s.code} value={s.code}>{s.code} · {s.name}</option>
-            ))}
-          </select>
-        </div>
-        <div>
-          <label htmlFor="f-parameter" className="field-label">Parameter</label>
-          <select id="f-parameter" name="parameter" defaultValue={filter.parameter ?? ""} className="field-input">
-            <option value="">Any parameter</option>
-            {ALERT_PARAMETERS.map((p) => (
-              <option key={p} value={p}>{PARAMETER_NAMES[p]}</option>
-            ))}
-          </select>
-        </div>
-        <div>
-          <label htmlFor="f-status" className="field-label">Status</label>
-          <select id="f-status" name="status" defaultValue={filter.status ?? ""} className="field-input">
-            <option value="">Any status</option>
-            {STATUSES.map((s) => (
-              <option key={s} value={s}>{STATUS_LABELS[s]}</option>
-            ))}
-          </select>
-        </div>
-        <div>
-          <label htmlFor="f-outcome" className="field-label">Outcome</label>
-          <select id="f-outcome" name="outcome" defaultValue={filter.outcome ?? ""} className="field-input">
-            <option value="">Any outcome</option>
-            <option value="unclassified">Not classified yet</option>
-            {OUTCOMES.map((o) => (
-              <option key={o} value={o}>{OUTCOME_LABELS[o]}</option>
-            ))}
-          </select>
-        </div>
+        <TableStateInputs table={table} defaultSort="started" />
+        <FilterSelect id="f-site" name="site" label="Site" anyLabel="Every site" defaultValue={filter.site} options={sites.map((s) => ({ value: s.code, label: `${s.code} · ${s.name}` }))} />
+        <FilterSelect id="f-parameter" name="parameter" label="Parameter" anyLabel="Any parameter" defaultValue={filter.parameter ?? ""} options={ALERT_PARAMETERS.map((p) => ({ value: p, label: PARAMETER_NAMES[p] }))} />
+        <FilterSelect id="f-status" name="status" label="Status" anyLabel="Any status" defaultValue={filter.status ?? ""} options={STATUSES.map((st) => ({ value: st, label: STATUS_LABELS[st] }))} />
+        <FilterSelect
+          id="f-outcome"
+          name="outcome"
+          label="Outcome"
+          anyLabel="Any outcome"
+          defaultValue={filter.outcome ?? ""}
+          options={[{ value: "unclassified", label: "Not classified yet" }, ...OUTCOMES.map((o) => ({ value: o, label: OUTCOME_LABELS[o] }))]}
+        />
         <div>
           <label htmlFor="f-from" className="field-label">From (UTC day)</label>
           <input id="f-from" type="date" name="from" defaultValue={filter.from ?? ""} className="field-input" />

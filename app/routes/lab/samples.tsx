@@ -2,11 +2,12 @@ import { data, Form, Link } from "react-router";
 import { z } from "zod";
 import type { Route } from "./+types/samples";
 import { DataTable, type Column } from "#app/components/data-table.tsx";
+import { FilterSelect, TableStateInputs } from "#app/components/filter-form.tsx";
 import { formatInZone } from "#app/lib/zoned-time.ts";
 import { countLabSamples, LAB_SAMPLE_SORT_KEYS, listLabSamplesPage } from "#app/models/lab-sample.server.ts";
 import { requireUser } from "#app/utils/auth.server.ts";
 import { REVIEW_ROLES } from "#app/utils/permissions.ts";
-import { DEFAULT_PAGE_SIZE, loadPage, parseTableParams } from "#app/utils/table-params.ts";
+import { loadPage, parseTableParams } from "#app/utils/table-params.ts";
 import { formatPercent, formatRatio } from "./+shared/format.ts";
 import { entrySites } from "./+shared/helpers.server.ts";
 import { LabCaution, VERDICT_WORDS, VerdictMark } from "./+shared/report.tsx";
@@ -107,31 +108,9 @@ export default function LabSamples({ loaderData }: Route.ComponentProps) {
       <Notice param="deleted" messages={{ "1": "The lab check was deleted. The change history keeps its values." }} />
       <LabCaution />
       <Form method="get" className="card flex flex-wrap items-end gap-3" aria-label="Filter lab checks">
-        {table.pageSize !== DEFAULT_PAGE_SIZE ? <input type="hidden" name="size" value={table.pageSize} /> : null}
-        {table.sort !== "sampledAt" || table.dir !== "desc" ? (
-          <>
-            <input type="hidden" name="sort" value={table.sort} />
-            <input type="hidden" name="dir" value={table.dir} />
-          </>
-        ) : null}
-        <div>
-          <label htmlFor="lab-site" className="field-label">Site</label>
-          <select id="lab-site" name="site" defaultValue={filter.site} className="field-input">
-            <option value="">Every site</option>
-            {sites.map((s) => (
-              <option key={s.code} value={s.code}>{s.code} · {s.name}</option>
-            ))}
-          </select>
-        </div>
-        <div>
-          <label htmlFor="lab-verdict" className="field-label">Verdict</label>
-          <select id="lab-verdict" name="verdict" defaultValue={filter.verdict ?? ""} className="field-input">
-            <option value="">Any verdict</option>
-            {VERDICTS.map((v) => (
-              <option key={v} value={v}>{VERDICT_WORDS[v]}</option>
-            ))}
-          </select>
-        </div>
+        <TableStateInputs table={table} defaultSort="sampledAt" />
+        <FilterSelect id="lab-site" name="site" label="Site" anyLabel="Every site" defaultValue={filter.site} options={sites.map((s) => ({ value: s.code, label: `${s.code} · ${s.name}` }))} />
+        <FilterSelect id="lab-verdict" name="verdict" label="Verdict" anyLabel="Any verdict" defaultValue={filter.verdict ?? ""} options={VERDICTS.map((v) => ({ value: v, label: VERDICT_WORDS[v] }))} />
         <button type="submit" className="btn-quiet">Show</button>
         {filter.site || filter.verdict ? <Link to="/lab" className="text-lake-700 underline">Clear filters</Link> : null}
       </Form>
