@@ -1,10 +1,7 @@
 import { randomBytes } from "node:crypto";
-import { PassThrough } from "node:stream";
+import { Writable } from "node:stream";
 import type { EntryContext, HandleDataRequestFunction } from "react-router";
-import { createReadableStreamFromReadable } from "@react-router/node";
 import { ServerRouter } from "react-router";
-import { isbot } from "isbot";
-import type { RenderToPipeableStreamOptions } from "react-dom/server";
 import { renderToPipeableStream } from "react-dom/server";
 import { NonceContext } from "./utils/nonce.ts";
 import { applySecurityHeaders } from "./utils/security-headers.server.ts";
@@ -24,38 +21,43 @@ export default function handleRequest(
     return new Response(null, { status: responseStatusCode, headers: responseHeaders });
   }
 
+  // The whole document is rendered before it is sent: no route streams (no Suspense or deferred
+  // data), and one buffer written once costs far less CPU than React's many small chunks, each its
+  // own socket write. It also lets an error anywhere in the render still answer 500.
   return new Promise((resolve, reject) => {
-    let shellRendered = false;
-    const userAgent = request.headers.get("user-agent");
-    const readyOption: keyof RenderToPipeableStreamOptions =
-      (userAgent && isbot(userAgent)) || routerContext.isSpaMode ? "onAllReady" : "onShellReady";
     let timeoutId: ReturnType<typeof setTimeout> | undefined = setTimeout(() => abort(), streamTimeout + 1000);
-
     const { pipe, abort } = renderToPipeableStream(
       <NonceContext.Provider value={nonce}>
         <ServerRouter context={routerContext} url={request.url} nonce={nonce} />
       </NonceContext.Provider>,
       {
         nonce,
-        [readyOption]() {
-          shellRendered = true;
-          const body = new PassThrough({
-            final(callback) {
-              clearTimeout(timeoutId);
-              timeoutId = undefined;
+        onAllReady() {
+          const chunks: Buffer[] = [];
+          const sink = new Writable({
+            write(chunk: Buffer, _encoding, callback) {
+              chunks.push(chunk);
               callback();
             },
           });
-          responseHeaders.set("Content-Type", "text/html; charset=utf-8");
-          pipe(body);
-          resolve(new Response(createReadableStreamFromReadable(body), { headers: responseHeaders, status: responseStatusCode }));
+          sink.on("finish", () => {
+            clearTimeout(timeoutId);
+            timeoutId = undefined;
+            const body = Buffer.concat(chunks);
+            responseHeaders.set("Content-Type", "text/html; charset=utf-8");
+            responseHeaders.set("Content-Length", String(body.byteLength));
+            resolve(new Response(body, { headers: responseHeaders, status: responseStatusCode }));
+          });
+          sink.on("error", reject);
+          pipe(sink);
         },
         onShellError(error: unknown) {
+          clearTimeout(timeoutId);
           reject(error);
         },
         onError(error: unknown) {
           responseStatusCode = 500;
-          if (shellRendered) console.error(error);
+          console.error(error);
         },
       },
     );

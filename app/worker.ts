@@ -1,5 +1,6 @@
 // The background worker: takes jobs from the PostgreSQL queue (graphile-worker). Run as its own
 // process (`node --import tsx app/worker.ts`); start more of them, on more machines, to scale.
+import { setPriority } from "node:os";
 import { run, type TaskList } from "graphile-worker";
 import { getEnv } from "#app/utils/env.server.ts";
 import { runIngestJob } from "#app/jobs/ingest.server.ts";
@@ -32,6 +33,18 @@ const tasks: TaskList = {
 
 // Recurring jobs (graphile-worker crontab; times are UTC): the weekly digest on Monday morning.
 const crontab = ["0 7 * * 1 weekly-digest"].join("\n");
+
+// Background work yields the CPU to people waiting on pages: the worker runs at a lower scheduling
+// priority (nice 10 unless WORKER_NICE says otherwise; 0 keeps it level with the app). Set before
+// any other thread starts, so the threads it starts later inherit it (on Linux nice is per thread).
+const nice = Number(process.env.WORKER_NICE ?? 10);
+if (nice) {
+  try {
+    setPriority(nice);
+  } catch (error) {
+    console.warn(`[worker] could not lower the priority to nice ${nice}: ${(error as Error).message}`);
+  }
+}
 
 const env = getEnv();
 const runner = await run({

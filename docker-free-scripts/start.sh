@@ -22,7 +22,8 @@ if [ -f app/worker.ts ]; then
   node --max-old-space-size=1024 --import tsx app/worker.ts > "$DATA_DIR/worker.log" 2>&1 &
   pids+=($!)
 fi
-HOST=127.0.0.1 PORT="$APP_PORT" npx react-router-serve ./build/server/index.js > "$DATA_DIR/app.log" 2>&1 &
+# The production server (app/serve.ts): one request process per CPU core, on loopback.
+HOST=127.0.0.1 PORT="$APP_PORT" node --import tsx app/serve.ts ./build/server/index.js > "$DATA_DIR/app.log" 2>&1 &
 pids+=($!)
 wait_port "$APP_PORT" "Ripplemark"
 

@@ -6,6 +6,7 @@ import { formatAge, type SiteStatus } from "#app/lib/quality/site-status.ts";
 import { formatValue, type DisplayThreshold } from "#app/lib/series/parameters.ts";
 import { SITE_KIND_LABELS } from "#app/utils/site-labels.ts";
 import type { SiteKind } from "#db/schema.ts";
+import { formatNumber } from "#app/lib/number-format.ts";
 
 // One site on the overview: status in words, the latest values, staleness, 7-day completeness,
 // open exceedances and a 7-day trend of specific conductance.
@@ -77,9 +78,9 @@ export function OverviewCard({ site: s, nowMs }: { site: OverviewCardSite; nowMs
             <span className="text-ink-500">no logger deployed</span>
           ) : (
             <>
-              {(s.window.share * 100).toLocaleString("en-GB", { maximumFractionDigits: 0 })} % complete{" "}
+              {formatNumber(s.window.share * 100, 0)} % complete{" "}
               <span className="text-ink-500">
-                ({s.window.received.toLocaleString("en-GB")} of {Math.round(s.window.expected).toLocaleString("en-GB")} readings)
+                ({formatNumber(s.window.received, 0)} of {formatNumber(Math.round(s.window.expected), 0)} readings)
               </span>
             </>
           )}

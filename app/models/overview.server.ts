@@ -5,6 +5,7 @@ import { completeness, expectedReadings } from "#app/lib/series/statistics.ts";
 import type { DisplayThreshold } from "#app/lib/series/parameters.ts";
 import type { OverviewSort } from "#app/utils/dashboard-options.ts";
 import { db } from "#app/utils/db.server.ts";
+import { cached } from "#app/utils/response-cache.server.ts";
 import { listSitesWithLoggers } from "./site.server.ts";
 import { thresholdsBySite } from "./site-settings.server.ts";
 import { openCountsBySite } from "./exceedance.server.ts";
@@ -151,6 +152,27 @@ export type OverviewSite = {
   reasons: string[];
   openExceedances: number | null;
 };
+
+/** The tables the overview is built from: a write to any of them makes a cached overview stale. */
+const OVERVIEW_TABLES = ["site", "logger", "logger_deployment", "site_assignment", "site_threshold", "readings", "exceedance", "alert_rule"] as const;
+/**
+ * A cached overview is at most this old: its ages, completeness and "no data lately" states are
+ * worked out from the time it was built (common practice for dashboard figures: a short cache).
+ */
+const OVERVIEW_CACHE_MS = 15_000;
+
+/**
+ * The overview for `user`, shared between requests while nothing under it changes (and for at most
+ * OVERVIEW_CACHE_MS). Technicians' overviews flag their own assigned sites, so each has its own
+ * entry; every other role sees the same one.
+ */
+export async function loadOverviewCached(user: { id: string; role: RoleName }): Promise<{ nowMs: number; sites: OverviewSite[] }> {
+  const key = user.role === "technician" ? `overview|technician|${user.id}` : "overview|all";
+  return cached(key, OVERVIEW_TABLES, OVERVIEW_CACHE_MS, async () => {
+    const nowMs = Date.now();
+    return { nowMs, sites: await loadOverview(user, nowMs) };
+  });
+}
 
 /** Every site the person may see (all of them; technicians' assigned sites flagged), with its latest state. */
 export async function loadOverview(user: { id: string; role: RoleName }, nowMs = Date.now()): Promise<OverviewSite[]> {

@@ -6,6 +6,7 @@ import { getEnv } from "#app/utils/env.server.ts";
 import { escapeHtml, sendMail } from "#app/utils/mail.server.ts";
 import { loadWeekTable, resolveWeek, type Change, type SiteWeekRow, type WeekTable } from "./summary-read.server.ts";
 import { summariseWeeks } from "./weekly-summary.server.ts";
+import { formatNumber } from "#app/lib/number-format.ts";
 
 // The weekly e-mail digest: every manager and everyone who opted in (person.weekly_digest) gets the
 // week's table from the summary cache, the sites that need a look first, and links into Ripplemark.
@@ -17,7 +18,7 @@ export const SCREENING_CAUTION =
 
 function n(value: number | null | undefined, digits = 0): string {
   if (value === null || value === undefined || !Number.isFinite(value)) return "—";
-  return value.toLocaleString("en-GB", { minimumFractionDigits: digits, maximumFractionDigits: digits });
+  return formatNumber(value, digits);
 }
 
 export function changeText(c: Change, unit = "µS/cm"): string {

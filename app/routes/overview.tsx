@@ -7,7 +7,7 @@ import { SiteMap } from "#app/components/site-map.tsx";
 import { StatusMark, STATUS_TEXT_CLASS } from "#app/components/status-mark.tsx";
 import { OverviewCard } from "#app/components/overview-card.tsx";
 import { SITE_STATUS_LABELS, SITE_STATUSES } from "#app/lib/quality/site-status.ts";
-import { countByStatus, filterAndSortSites, loadOverview } from "#app/models/overview.server.ts";
+import { countByStatus, filterAndSortSites, loadOverviewCached } from "#app/models/overview.server.ts";
 import { OVERVIEW_SORTS } from "#app/utils/dashboard-options.ts";
 import { requireUser } from "#app/utils/auth.server.ts";
 import { ANY_ROLE } from "#app/utils/permissions.ts";
@@ -40,8 +40,8 @@ export async function loader({ request }: Route.LoaderArgs) {
     q: search.get("q") || undefined,
     sort: search.get("sort") ?? undefined,
   });
-  const nowMs = Date.now();
-  const all = await loadOverview(user, nowMs);
+  // The figures as at nowMs: when they were worked out (shared between requests for a few seconds).
+  const { nowMs, sites: all } = await loadOverviewCached(user);
   const isTechnician = user.role === "technician";
   return {
     nowMs,

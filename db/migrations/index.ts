@@ -7,6 +7,7 @@ import * as m0005 from "./0005_reading_corrections.ts";
 import * as m0006 from "./0006_alerts.ts";
 import * as m0007 from "./0007_field_visits.ts";
 import * as m0008 from "./0008_weekly_summaries.ts";
+import * as m0009 from "./0009_change_notices.ts";
 
 // Every migration, in order. Add a new file here when you add one to this folder (a test checks
 // that the folder and this list agree).
@@ -19,4 +20,5 @@ export const migrations: Record<string, Migration> = {
   "0006_alerts": m0006,
   "0007_field_visits": m0007,
   "0008_weekly_summaries": m0008,
+  "0009_change_notices": m0009,
 };

@@ -53,15 +53,17 @@ export default async function setup(project: TestProject) {
   await seedDemo(db, { readingsDays: 160 });
   await db.destroy();
 
-  const env = { ...process.env, PORT: String(port), HOST: "127.0.0.1" };
+  // The worker at the app's priority (WORKER_NICE=0): the browser competes for the same two cores,
+  // and the journeys wait on its jobs.
+  const env = { ...process.env, PORT: String(port), HOST: "127.0.0.1", WORKER_NICE: "0" };
   // Server and worker output goes to .data/e2e-*.log (kept for reading after a failure).
   mkdirSync(path.join(root, ".data"), { recursive: true });
   const logTo = (name: string) => openSync(path.join(root, ".data", `e2e-${name}.log`), "w");
-  // TEST_BUILD_DIR: serve a build kept apart from build/ (react-router-serve finds the client
-  // assets relative to its working folder, so it runs in the folder holding that build).
+  // TEST_BUILD_DIR: serve a build kept apart from build/ (app/serve.ts finds the client assets
+  // next to the server build it is given).
   const buildDir = process.env.TEST_BUILD_DIR ? path.resolve(process.env.TEST_BUILD_DIR) : path.join(root, "build");
-  const app = spawn(process.execPath, [path.join(root, "node_modules/@react-router/serve/bin.js"), path.join(buildDir, "server/index.js")], {
-    cwd: path.dirname(buildDir),
+  const app = spawn(process.execPath, ["--import", "tsx", path.join(root, "app/serve.ts"), path.join(buildDir, "server/index.js")], {
+    cwd: root,
     env,
     stdio: ["ignore", logTo("app"), logTo("app")],
   });

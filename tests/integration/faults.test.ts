@@ -95,9 +95,9 @@ describe("S3 unavailable during an upload", () => {
   const origin = `http://127.0.0.1:${port}`;
   let server: ReturnType<typeof spawn>;
   beforeAll(async () => {
-    server = spawn(process.execPath, [path.join(root, "node_modules/@react-router/serve/bin.js"), "./build/server/index.js"], {
+    server = spawn(process.execPath, ["--import", "tsx", "app/serve.ts", process.env.TEST_BUILD_DIR ? path.resolve(process.env.TEST_BUILD_DIR, "server/index.js") : "./build/server/index.js"], {
       cwd: root,
-      env: { ...process.env, NODE_ENV: "production", PORT: String(port), HOST: "127.0.0.1", APP_ORIGIN: origin, S3_ENDPOINT: "http://127.0.0.1:9" },
+      env: { ...process.env, NODE_ENV: "production", PORT: String(port), HOST: "127.0.0.1", WEB_CONCURRENCY: "1", APP_ORIGIN: origin, S3_ENDPOINT: "http://127.0.0.1:9" },
       stdio: "ignore",
     });
     const end = Date.now() + 30_000;

@@ -1,8 +1,9 @@
 // Number and change formatting for the summary pages (browser and server alike).
+import { formatNumber } from "#app/lib/number-format.ts";
 
 export function num(value: number | null | undefined, digits = 0): string {
   if (value === null || value === undefined || !Number.isFinite(value)) return "—";
-  return value.toLocaleString("en-GB", { minimumFractionDigits: digits, maximumFractionDigits: digits });
+  return formatNumber(value, digits);
 }
 
 export type ChangeLike = { absolute: number; percent: number | null } | null;

@@ -1,6 +1,7 @@
 // The parameters a site's charts and the series API know, with their units and labels. Shared by
 // browser and server. The keys are the only names accepted from a URL; the server maps each key to
 // its column through its own allow-list (app/models/series.server.ts), never by string building.
+import { formatNumber } from "#app/lib/number-format.ts";
 
 export const SERIES_PARAMETERS = ["sc25", "conductivity", "temperature", "tds", "salinity", "ph", "depth", "battery"] as const;
 /** Series charted only on request: specific conductance before field-visit corrections (0005, 0007). */
@@ -59,6 +60,6 @@ export type DisplayThreshold = { parameter: ThresholdParameter; bound: Threshold
 export function formatValue(p: SeriesParameter, value: number | null | undefined, withUnit = true): string {
   if (value === null || value === undefined || !Number.isFinite(value)) return "—";
   const info = PARAMETER_INFO[p];
-  const text = value.toLocaleString("en-GB", { minimumFractionDigits: info.decimals, maximumFractionDigits: info.decimals });
+  const text = formatNumber(value, info.decimals);
   return withUnit && info.unit ? `${text} ${info.unit}` : text;
 }

@@ -2,6 +2,7 @@
 // and the e-mail digest all call this, so they agree. Pure.
 import { GRADE_LABELS, type Grade } from "#app/lib/quality/grades.ts";
 import { formatSlope, type Trend } from "./trend.ts";
+import { formatNumber } from "#app/lib/number-format.ts";
 
 /** Below this share of expected readings a week's figures rest on too little data (our setting). */
 export const LOW_COMPLETENESS = 0.9;
@@ -40,7 +41,7 @@ export function percentText(share: number | null | undefined, digits = 1): strin
   if (share === null || share === undefined || !Number.isFinite(share)) return "—";
   const v = share * 100;
   if (v > 0 && v < 0.1) return "< 0.1 %";
-  return `${v.toLocaleString("en-GB", { maximumFractionDigits: digits })} %`;
+  return `${formatNumber(v, 0, digits)} %`;
 }
 
 function isGrade(g: string | null): g is Grade {
@@ -101,7 +102,7 @@ export function heatmapValueText(stat: HeatmapStat, value: number | null): strin
   if (value === null || !Number.isFinite(value)) return "—";
   if (HEATMAP_STAT_INFO[stat].percent) return percentText(value, 0);
   if (stat === "events") return String(Math.round(value));
-  return `${Math.round(value).toLocaleString("en-GB")} µS/cm`;
+  return `${formatNumber(Math.round(value), 0)} µS/cm`;
 }
 
 /**
