@@ -21,13 +21,16 @@ const inflight = new Map<string, Promise<unknown>>();
 
 export const cacheStats = { hits: 0, misses: 0, bypassed: 0 };
 
+/** RESPONSE_CACHE=off computes every answer (benchmarks of the computation itself, debugging). */
+const cacheOff = () => process.env.RESPONSE_CACHE === "off";
+
 /**
  * `compute()`'s answer for `key`, reused while `tables` are unchanged and for at most `ttlMs`.
  * The stamp is taken before computing, so a change that commits during the computation leaves the
  * entry already stale.
  */
 export async function cached<T>(key: string, tables: readonly NotifiedTable[], ttlMs: number, compute: () => Promise<T>): Promise<T> {
-  const stamp = changeStamp(tables);
+  const stamp = cacheOff() ? null : changeStamp(tables);
   if (stamp === null) {
     cacheStats.bypassed++;
     return compute();
