@@ -21,7 +21,7 @@ export type OverviewCardSite = {
   assigned: boolean;
   latest: { timeMs: number; sc25: number | null; temperature: number | null; tds: number | null; salinity: number | null; showSalinity: boolean } | null;
   window: { received: number; expected: number; share: number | null };
-  trend: { fromMs: number; bucketMs: number; points: [number, number | null][] };
+  trend: { fromMs: number; bucketMs: number; means: (number | null)[] };
   thresholds: DisplayThreshold[];
   status: SiteStatus;
   reasons: string[];
@@ -30,7 +30,8 @@ export type OverviewCardSite = {
 
 export function OverviewCard({ site: s, nowMs }: { site: OverviewCardSite; nowMs: number }) {
   const titleId = `site-${s.code}-name`;
-  const trendEnd = s.trend.fromMs + s.trend.points.length * s.trend.bucketMs;
+  const trendEnd = s.trend.fromMs + s.trend.means.length * s.trend.bucketMs;
+  const trendPoints = s.trend.means.map((v, i): [number, number | null] => [s.trend.fromMs + (i + 0.5) * s.trend.bucketMs, v]);
   return (
     <li className="card flex flex-col gap-2" aria-labelledby={titleId} data-testid="site-card" data-status={s.status}>
       <p className="text-sm font-semibold text-ink-500">
@@ -91,7 +92,7 @@ export function OverviewCard({ site: s, nowMs }: { site: OverviewCardSite; nowMs
       <div>
         <p className="text-xs text-ink-500">Specific conductance, 7 days to the latest reading</p>
         <Sparkline
-          points={s.trend.points}
+          points={trendPoints}
           fromMs={s.trend.fromMs}
           toMs={trendEnd}
           thresholds={s.thresholds.filter((t) => t.parameter === "sc25")}

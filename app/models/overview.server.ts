@@ -146,7 +146,8 @@ export type OverviewSite = {
   } | null;
   ageMs: number | null;
   window: { received: number; expected: number; share: number | null };
-  trend: { fromMs: number; bucketMs: number; points: [number, number | null][] };
+  /** Mean specific conductance per bucket from fromMs (null: no readings), to 0.1 µS/cm: a sparkline's worth. */
+  trend: { fromMs: number; bucketMs: number; means: (number | null)[] };
   thresholds: DisplayThreshold[];
   status: SiteStatus;
   reasons: string[];
@@ -211,9 +212,10 @@ export async function loadOverview(user: { id: string; role: RoleName }, nowMs =
     const w = trendWindows[i];
     const bucketMs = TREND_BUCKET_S * 1000;
     const byBucket = new Map((trendRows.get(s.id) ?? []).map((r) => [r.b, r.mean]));
-    const points: [number, number | null][] = [];
+    const means: (number | null)[] = [];
     for (let b = 0; b < OVERVIEW_WINDOW_MS / bucketMs; b++) {
-      points.push([w.fromMs + b * bucketMs + bucketMs / 2, byBucket.get(b) ?? null]);
+      const m = byBucket.get(b);
+      means.push(m === undefined ? null : Math.round(m * 10) / 10);
     }
     return {
       id: s.id,
@@ -236,7 +238,7 @@ export async function loadOverview(user: { id: string; role: RoleName }, nowMs =
       },
       ageMs: l ? nowMs - l.time.getTime() : null,
       window: { received, expected, share: completeness(received, expected) },
-      trend: { fromMs: w.fromMs, bucketMs, points },
+      trend: { fromMs: w.fromMs, bucketMs, means },
       thresholds: th,
       status: status.status,
       reasons: status.reasons,

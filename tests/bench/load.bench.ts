@@ -23,6 +23,9 @@ const DURATION_S = Number(process.env.LOAD_SECONDS ?? 30);
 // back to back would be a password-guessing flood (which the throttle and the low-priority hashing
 // thread are for), not people starting their day. 2 a second is 7,200 sign-ins an hour.
 // LOAD_SIGN_IN_RATE=0 takes the brake off.
+// The overview as a whole document (server-rendered page: the default, and the heavier), or as the
+// data a client-side navigation fetches (LOAD_OVERVIEW=data).
+const OVERVIEW_PATH = process.env.LOAD_OVERVIEW === "data" ? "/_root.data?_routes=routes%2Foverview" : "/";
 const SIGN_IN_RATE = Number(process.env.LOAD_SIGN_IN_RATE ?? 2) || undefined;
 const root = path.resolve(import.meta.dirname, "../..");
 const children: ChildProcess[] = [];
@@ -154,7 +157,7 @@ await Promise.all([
 const uploadId = process.env.LOAD_NO_INGEST ? null : await startIngest();
 const stats = await Promise.all([
   drive("series API", 20, { path: seriesPath, headers: { Cookie: cookie } }),
-  drive("overview", process.env.LOAD_NO_OVERVIEW ? 1 : 20, { path: "/", headers: { Cookie: cookie } }),
+  drive("overview", process.env.LOAD_NO_OVERVIEW ? 1 : 20, { path: OVERVIEW_PATH, headers: { Cookie: cookie } }),
   drive("sign-in", process.env.LOAD_NO_SIGNIN ? 1 : 10, {
     // Paced: SIGN_IN_RATE sign-ins a second over the 10 connections (see the note at the top).
     overallRate: SIGN_IN_RATE,
