@@ -123,3 +123,53 @@ describe("SQL injection attempts in free-text filters", () => {
     });
   }
 });
+
+describe("what pages send to the browser", () => {
+  // Every page's HTML and its loader data (the `.data` a client navigation fetches) as each role
+  // sees it, searched for secrets: password hashes, live session ids (stored as SHA-256), reset
+  // token hashes, the cookie-signing secret, the S3 secret key and the database password.
+  it("holds no secret, whoever asks", async () => {
+    const people = await db.selectFrom("person").select(["id", "password_hash"]).execute();
+    const technician = await db.selectFrom("person").select("id").where("role", "=", "technician").executeTakeFirstOrThrow();
+    const jars: Record<string, Jar> = {
+      technician: tech,
+      officer: await signIn("officer@test.example", TEST_PASSWORD),
+      manager: await signIn("manager@test.example", TEST_PASSWORD),
+      admin,
+    };
+    await request("/forgot-password", { form: { email: "manager@test.example" } });
+    const sessions = await db.selectFrom("session").select("id").execute();
+    const tokens = await db.selectFrom("password_token").select("token_hash").execute();
+    const secrets = [
+      ...people.map((p) => p.password_hash).filter((h): h is string => Boolean(h)),
+      "scrypt$",
+      ...sessions.map((s) => s.id),
+      ...tokens.map((t) => t.token_hash),
+      ...process.env.SESSION_SECRET!.split(","),
+      process.env.S3_SECRET_ACCESS_KEY!,
+      new URL(process.env.DATABASE_URL!).password,
+    ].filter((s) => s.length >= 6);
+    expect(sessions.length).toBeGreaterThanOrEqual(4);
+    expect(tokens.length).toBeGreaterThan(0);
+
+    const pages: Record<string, string[]> = {
+      technician: ["/", "/account", "/uploads", "/visits", "/sites/SEC1", "/notifications"],
+      officer: ["/", "/exceedances", "/corrections", "/lab", "/alert-rules", "/summaries"],
+      manager: ["/", "/summaries", "/sites/SEC1", "/compare"],
+      admin: ["/", "/admin/people", `/admin/people/${technician.id}`, "/admin/sites", "/admin/loggers", "/admin/outbox"],
+    };
+    let checked = 0;
+    for (const [role, paths] of Object.entries(pages)) {
+      for (const path of paths) {
+        for (const url of [path, path === "/" ? "/_root.data" : `${path}.data`]) {
+          const res = await request(url, { jar: jars[role] });
+          expect(res.status, `${role} ${url}`).toBe(200);
+          const body = await res.text();
+          for (const secret of secrets) expect(body.includes(secret), `${role} ${url} contains a secret`).toBe(false);
+          checked++;
+        }
+      }
+    }
+    expect(checked).toBe(44);
+  });
+});
