@@ -15,6 +15,9 @@ let stopping = false;
 async function stop(code: number) {
   if (stopping) return;
   stopping = true;
+  // Closing waits for open keep-alive connections (the app's S3 client holds some); do not wait
+  // for ever.
+  setTimeout(() => process.exit(code), 3_000).unref();
   await Promise.allSettled([s3?.close(), smtp?.close()]);
   process.exit(code);
 }
