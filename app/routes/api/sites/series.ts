@@ -15,15 +15,15 @@ import { ANY_ROLE } from "#app/utils/permissions.ts";
 // site over [from, to) as at most `points` (≤ 2000) chart points. Times are UTC: ISO instants in,
 // epoch milliseconds out. Answer: { parameter, unit, from, to, bucketSeconds, readings, gapSeconds,
 // points: [[timeMs, value|null, min?, max?], …] } (see app/lib/series/bucketing.ts).
-/** How long a cached series may be reused at most, even when nothing changed (common practice: a short backstop). */
-const SERIES_CACHE_MS = 5 * 60_000;
-
 const query = z.object({
   parameter: z.enum(ALL_SERIES_PARAMETERS, { error: `parameter must be one of ${ALL_SERIES_PARAMETERS.join(", ")}` }),
   from: z.iso.datetime({ offset: true, error: "from must be an ISO date-time with a zone, such as 2025-03-01T00:00:00Z" }),
   to: z.iso.datetime({ offset: true, error: "to must be an ISO date-time with a zone, such as 2025-03-08T00:00:00Z" }),
   points: z.coerce.number().int().min(10).max(100_000).default(1500),
 });
+
+/** How long a cached series may be reused at most, even when nothing changed (common practice: a short backstop). */
+const SERIES_CACHE_MS = 5 * 60_000;
 
 /**
  * Values to the parameter's display decimals plus two guard digits: about half the bytes of full

@@ -1,14 +1,5 @@
 // Number formats of the lab-check pages: enough digits to judge a check against its range, no more.
-
-const cache = new Map<string, Intl.NumberFormat>();
-function nf(key: string, options: Intl.NumberFormatOptions) {
-  let f = cache.get(key);
-  if (!f) {
-    f = new Intl.NumberFormat("en-GB", options);
-    cache.set(key, f);
-  }
-  return f;
-}
+import { numberFormat } from "#app/lib/number-format.ts";
 
 const DASH = "—";
 
@@ -19,40 +10,40 @@ function ok(value: number | null | undefined): value is number {
 /** Conductivity, four significant figures: "406.2 µS/cm", "1,235 µS/cm". */
 export function formatEc(value: number | null | undefined, unit = true) {
   if (!ok(value)) return DASH;
-  const text = nf("ec", { maximumSignificantDigits: 4 }).format(value);
+  const text = numberFormat({ maximumSignificantDigits: 4 }).format(value);
   return unit ? `${text} µS/cm` : text;
 }
 
 /** A concentration as the laboratory gave it (up to 4 significant figures). */
 export function formatMgPerL(value: number | null | undefined, unit = true) {
   if (!ok(value)) return DASH;
-  const text = nf("mg", { maximumSignificantDigits: 4 }).format(value);
+  const text = numberFormat({ maximumSignificantDigits: 4 }).format(value);
   return unit ? `${text} mg/L` : text;
 }
 
 export function formatMeq(value: number, unit = true) {
-  const text = nf("meq", { minimumFractionDigits: 3, maximumFractionDigits: 3 }).format(value);
+  const text = numberFormat({ minimumFractionDigits: 3, maximumFractionDigits: 3 }).format(value);
   return unit ? `${text} meq/L` : text;
 }
 
 export function formatMmol(value: number) {
-  return nf("mmol", { maximumSignificantDigits: 4 }).format(value);
+  return numberFormat({ maximumSignificantDigits: 4 }).format(value);
 }
 
 /** Ratios to three decimals, so a value just outside 0.90–1.10 does not print as the bound. */
 export function formatRatio(value: number | null | undefined) {
   if (!ok(value)) return DASH;
-  return nf("ratio", { minimumFractionDigits: 3, maximumFractionDigits: 3 }).format(value);
+  return numberFormat({ minimumFractionDigits: 3, maximumFractionDigits: 3 }).format(value);
 }
 
 export function formatBound(value: number) {
-  return nf("bound", { minimumFractionDigits: 2, maximumFractionDigits: 2 }).format(value);
+  return numberFormat({ minimumFractionDigits: 2, maximumFractionDigits: 2 }).format(value);
 }
 
 /** "+1.4 %", "−3.4 %" (true minus sign). */
 export function formatPercent(value: number | null | undefined) {
   if (!ok(value)) return DASH;
-  const text = nf("pct", { minimumFractionDigits: 1, maximumFractionDigits: 1, signDisplay: "exceptZero" }).format(value);
+  const text = numberFormat({ minimumFractionDigits: 1, maximumFractionDigits: 1, signDisplay: "exceptZero" }).format(value);
   return `${text.replace("-", "−")} %`;
 }
 
@@ -62,18 +53,18 @@ export function formatSignedMeq(value: number) {
 
 export function formatPH(value: number | null | undefined) {
   if (!ok(value)) return DASH;
-  return nf("ph", { minimumFractionDigits: 1, maximumFractionDigits: 2 }).format(value);
+  return numberFormat({ minimumFractionDigits: 1, maximumFractionDigits: 2 }).format(value);
 }
 
 /** Ionic strength in mol/L, three significant figures ("0.00512"). */
 export function formatIonicStrength(value: number) {
-  return nf("ionic", { maximumSignificantDigits: 3 }).format(value);
+  return numberFormat({ maximumSignificantDigits: 3 }).format(value);
 }
 
 export function formatCoefficient(value: number) {
-  return nf("coef", { minimumFractionDigits: 4, maximumFractionDigits: 4 }).format(value);
+  return numberFormat({ minimumFractionDigits: 4, maximumFractionDigits: 4 }).format(value);
 }
 
 export function formatLambda(value: number) {
-  return nf("lambda", { minimumFractionDigits: 1, maximumFractionDigits: 2 }).format(value);
+  return numberFormat({ minimumFractionDigits: 1, maximumFractionDigits: 2 }).format(value);
 }
