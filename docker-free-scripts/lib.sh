@@ -95,7 +95,10 @@ start_fakes() {
     return 0
   fi
   log "starting S3 fake (127.0.0.1:$S3_FAKE_PORT) and SMTP fake (127.0.0.1:$SMTP_FAKE_PORT, mailbox API :$SMTP_FAKE_HTTP_PORT)"
-  (cd "$ROOT" && nohup node --import tsx fakes/start-all.ts > "$DATA_DIR/fakes.log" 2>&1 &
+  # Only the node command goes to the background (not the `cd`), so $! is node's own pid and
+  # stop.sh stops the fakes themselves rather than a subshell around them.
+  (cd "$ROOT" || exit 1
+   nohup node --import tsx fakes/start-all.ts > "$DATA_DIR/fakes.log" 2>&1 &
    echo $! > "$DATA_DIR/fakes.pid")
   wait_port "$S3_FAKE_PORT" "S3 fake"
   wait_port "$SMTP_FAKE_PORT" "SMTP fake"
