@@ -33,6 +33,8 @@ export default defineConfig({
           testTimeout: 120_000,
           hookTimeout: 180_000,
           fileParallelism: false,
+          // A loaded CI machine can take more than the default second to re-render after an input.
+          expect: { poll: { timeout: 10_000, interval: 100 } },
         },
       },
     ],

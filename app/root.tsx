@@ -1,4 +1,4 @@
-import { isRouteErrorResponse, Links, Meta, Outlet, Scripts, ScrollRestoration } from "react-router";
+import { isRouteErrorResponse, Links, Meta, Outlet, Scripts, ScrollRestoration, useLocation } from "react-router";
 import type { Route } from "./+types/root";
 import "./app.css";
 import { ErrorPage } from "./components/error-page.tsx";
@@ -8,6 +8,7 @@ export const meta: Route.MetaFunction = () => [{ title: "Ripplemark" }];
 
 export function Layout({ children }: { children: React.ReactNode }) {
   const nonce = useNonce();
+  const location = useLocation();
   return (
     <html lang="en-GB">
       <head>
@@ -17,7 +18,9 @@ export function Layout({ children }: { children: React.ReactNode }) {
         <Meta />
         <Links />
       </head>
-      <body className="min-h-screen">
+      {/* data-location changes in the same commit as the page, so scripts (and the browser tests) can
+          tell a finished client navigation from one whose address has changed but whose page has not. */}
+      <body className="min-h-screen" data-location={location.pathname + location.search}>
         {children}
         <ScrollRestoration nonce={nonce} />
         <Scripts nonce={nonce} />

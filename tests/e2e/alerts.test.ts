@@ -5,7 +5,7 @@ import type { Page } from "playwright-core";
 import { createDb } from "#db/connect.ts";
 import { DEMO_PEOPLE } from "#db/demo/scenario.ts";
 import { getMessage, listMessages, type StoredMessage } from "#fakes/smtp/client.ts";
-import { signInAs, useBrowser } from "../support/browser.ts";
+import { signInAs, useBrowser, waitForPage } from "../support/browser.ts";
 
 // An officer writes an alert rule in the browser, readings break it, the worker finds the event and
 // e-mails it through the SMTP fake, and the officer opens the event from the e-mail's link and
@@ -87,7 +87,7 @@ describe("alert rules, exceedances and e-mail", () => {
       } finally {
         // The browser context is shared by the file's tests: never leave a session behind.
         await page.getByRole("button", { name: "Sign out" }).click();
-        await page.waitForURL((u) => u.pathname.startsWith("/sign-in"));
+        await waitForPage(page, (u) => u.pathname.startsWith("/sign-in"));
       }
     }
   });
@@ -102,10 +102,10 @@ describe("alert rules, exceedances and e-mail", () => {
 
     // 1. The rule, in mS/cm, with the form checking the clear level as it is typed.
     await page.getByRole("navigation", { name: "Main" }).getByRole("link", { name: "Alert rules" }).click();
-    await page.waitForURL("**/alert-rules");
+    await waitForPage(page, "**/alert-rules");
     expect(await page.getByTestId("screening-caution").first().textContent()).toContain("screening values");
     await page.getByRole("link", { name: "New rule" }).click();
-    await page.waitForURL("**/alert-rules/new");
+    await waitForPage(page, "**/alert-rules/new");
     await page.getByLabel("Name").fill(RULE);
     await page.getByLabel("Unit of the values").selectOption("mS/cm");
     await page.getByLabel("Threshold").fill("3");
@@ -120,7 +120,7 @@ describe("alert rules, exceedances and e-mail", () => {
     expect(await page.getByLabel("Also send an e-mail for each new event").isChecked()).toBe(true);
     expect(await axeProblems(page)).toEqual([]);
     await page.getByRole("button", { name: "Save the rule" }).click();
-    await page.waitForURL((u) => /^\/alert-rules\/[0-9a-f-]{36}$/.test(u.pathname) && u.searchParams.get("saved") === "created");
+    await waitForPage(page, (u) => /^\/alert-rules\/[0-9a-f-]{36}$/.test(u.pathname) && u.searchParams.get("saved") === "created");
     expect(await page.getByRole("status").textContent()).toContain("The rule is saved");
     expect(await page.locator("dd").filter({ hasText: "above 3 mS/cm" }).textContent()).toContain("for at least 30 min; clears at 2.8 mS/cm");
     const ruleId = new URL(page.url()).pathname.split("/").pop()!;
@@ -157,7 +157,7 @@ describe("alert rules, exceedances and e-mail", () => {
     await page.getByLabel(/Flag this event's readings as a sensor fault/).check();
     await page.getByLabel("Comment").fill("Weed round the probe; cleaned on the next round.");
     await page.getByRole("button", { name: "Save and close" }).click();
-    await page.waitForURL((u) => u.searchParams.get("saved") === "closed");
+    await waitForPage(page, (u) => u.searchParams.get("saved") === "closed");
     await expect.poll(() => page.getByTestId("event-status").textContent()).toContain("Closed");
     expect(await page.getByTestId("event-status").textContent()).toContain("Sensor fault or fouling");
     // 02:00–04:00: nine readings (04:15, back at 2 mS/cm, ended the event and is not flagged).
@@ -175,7 +175,7 @@ describe("alert rules, exceedances and e-mail", () => {
     expect(await row.textContent()).toContain("Sensor fault or fouling");
     expect(await axeProblems(page)).toEqual([]);
     await page.getByTestId("notifications-link").click();
-    await page.waitForURL("**/notifications");
+    await waitForPage(page, "**/notifications");
     expect(await page.getByTestId("notification-list").textContent()).toContain(RULE);
 
     expect(consoleErrors).toEqual([]);

@@ -3,7 +3,7 @@ import axe from "axe-core";
 import pg from "pg";
 import { afterAll, beforeAll, describe, expect, inject, it } from "vitest";
 import { DEMO_PEOPLE } from "#db/demo/scenario.ts";
-import { signInAs, useBrowser } from "../support/browser.ts";
+import { signInAs, useBrowser, waitForPage } from "../support/browser.ts";
 
 // Overview → a site → change the range: the charts fetch new points from the series API in place,
 // with no document load (a marker put on `window` before the change is still there after it).
@@ -74,7 +74,7 @@ describe("site dashboards", () => {
     await expect.poll(() => card.count()).toBe(1);
     await expect.poll(() => card.textContent()).toMatch(/In range|Above threshold/);
     await card.getByRole("link", { name: NAME }).click();
-    await page.waitForURL((u) => u.pathname === `/sites/${CODE}`);
+    await waitForPage(page, (u) => u.pathname === `/sites/${CODE}`);
 
     // First draw: the last week (the default), every reading (7 × 96 = 672 at most).
     const resolution = page.getByTestId("chart-resolution");

@@ -3,7 +3,7 @@ import { DEMO_PEOPLE } from "#db/demo/scenario.ts";
 import { waitForMessage } from "#fakes/smtp/client.ts";
 import { createDb } from "#db/connect.ts";
 import { hashPassword } from "#app/utils/password.server.ts";
-import { signInAs, signOut, useBrowser } from "../support/browser.ts";
+import { signInAs, signOut, useBrowser, waitForPage } from "../support/browser.ts";
 
 const browser = useBrowser();
 
@@ -69,7 +69,7 @@ describe("password reset", () => {
     await page.getByLabel("New password").fill("a-brand-new-pass-1");
     await page.getByLabel("The same password again").fill("a-brand-new-pass-1");
     await page.getByRole("button", { name: /Save the password/ }).click();
-    await page.waitForURL((u) => u.pathname === "/");
+    await waitForPage(page, (u) => u.pathname === "/");
     await expect.poll(() => page.getByTestId("current-user").textContent()).toContain(manager.name);
     await signOut(page);
     await signInAs(page, manager.email, "a-brand-new-pass-1");

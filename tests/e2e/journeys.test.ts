@@ -2,7 +2,7 @@ import { describe, expect, inject, it } from "vitest";
 import type { Locator, Page } from "playwright-core";
 import { DEMO_PEOPLE } from "#db/demo/scenario.ts";
 import { waitForMessage } from "#fakes/smtp/client.ts";
-import { signInAs, signOut, useBrowser } from "../support/browser.ts";
+import { signInAs, signOut, useBrowser, waitForPage } from "../support/browser.ts";
 
 // Every role's job from sign-in to the end, on the demo data (160 days seeded by the global setup).
 const browser = useBrowser();
@@ -30,7 +30,7 @@ describe("every role's journey", () => {
     const fresh = ["Serial: RQ-4101", "Stamp|EC mS/cm|Water temp C"];
     for (let i = 0; i < 24; i++) fresh.push(`2018-05-02T${String(i).padStart(2, "0")}:00:00Z|0.0${90 + (i % 9)}|8.${i % 10}`);
     await page.getByRole("link", { name: "Uploads", exact: true }).click();
-    await page.waitForURL((u) => u.pathname === "/uploads");
+    await waitForPage(page, (u) => u.pathname === "/uploads");
     await page.getByTestId("upload-input").setInputFiles([
       { name: "RQ-4102_2018-05.csv", mimeType: "text/csv", buffer: Buffer.from(known.join("\n") + "\n") },
       { name: "headspring-pipe-export.txt", mimeType: "text/plain", buffer: Buffer.from(fresh.join("\n") + "\n") },
@@ -61,7 +61,7 @@ describe("every role's journey", () => {
     // The round's field visit at QH1, with a calibration check, pass/fail shown before saving.
     await page.getByRole("link", { name: "Field visits" }).click();
     await page.getByRole("link", { name: "Record a visit" }).click();
-    await page.waitForURL((u) => u.pathname === "/visits/new");
+    await waitForPage(page, (u) => u.pathname === "/visits/new");
     await page.getByLabel("Site", { exact: true }).selectOption({ label: "QH1 · Quell Head springs" });
     await expect.poll(() => selectedText(page.getByLabel("Logger"))).toContain("RQ-4101");
     const yesterday = new Date(Date.now() - 86_400_000).toISOString().slice(0, 10);
@@ -76,7 +76,7 @@ describe("every role's journey", () => {
     await check.getByLabel("Sensor reading in the standard").fill("1270");
     await expect.poll(() => page.getByTestId("check-result-0").textContent()).toMatch(/Pass|Fail/);
     await page.getByRole("button", { name: "Save the visit" }).click();
-    await page.waitForURL((u) => /^\/visits\/[0-9a-f-]{36}$/.test(u.pathname));
+    await waitForPage(page, (u) => /^\/visits\/[0-9a-f-]{36}$/.test(u.pathname));
     await expect.poll(() => page.getByRole("status").first().textContent()).toContain("Visit saved");
     await signOut(page);
   });
@@ -88,11 +88,11 @@ describe("every role's journey", () => {
 
     // 1. The AB8 borehole's TDS event (the demo's slowly rising conductivity).
     await page.getByRole("link", { name: "Exceedances" }).click();
-    await page.waitForURL((u) => u.pathname === "/exceedances");
+    await waitForPage(page, (u) => u.pathname === "/exceedances");
     const row = page.locator("tbody tr").filter({ hasText: "AB8" }).first();
     await expect.poll(() => row.count()).toBe(1);
     await row.getByRole("link").first().click();
-    await page.waitForURL((u) => /^\/exceedances\/[0-9a-f-]{36}$/.test(u.pathname));
+    await waitForPage(page, (u) => /^\/exceedances\/[0-9a-f-]{36}$/.test(u.pathname));
     await page.getByRole("radio", { name: /Real change in the water/ }).check();
     await page.getByLabel("Comment").fill("Abstraction has raised the borehole's conductivity; confirmed by the quarterly grab sample.");
     await page.getByRole("button", { name: "Save and close" }).click();
@@ -101,9 +101,9 @@ describe("every role's journey", () => {
 
     // 2. The HR5 calibration drift proposed from the September visit.
     await page.getByRole("link", { name: "Corrections" }).click();
-    await page.waitForURL((u) => u.pathname.startsWith("/corrections"));
+    await waitForPage(page, (u) => u.pathname.startsWith("/corrections"));
     await page.getByRole("link", { name: "HR5" }).first().click();
-    await page.waitForURL((u) => u.pathname === "/sites/HR5/corrections");
+    await waitForPage(page, (u) => u.pathname === "/sites/HR5/corrections");
     const approve = page.getByRole("button", { name: "Approve and apply" }).first();
     await expect.poll(() => approve.count()).toBe(1);
     const before = await page.getByRole("button", { name: "Approve and apply" }).count();
@@ -122,7 +122,7 @@ describe("every role's journey", () => {
     await page.getByLabel("TDS (mg/L)", { exact: true }).fill("265");
     await page.getByLabel("pH", { exact: true }).fill("7.6");
     await page.getByRole("button", { name: "Save the lab check" }).click();
-    await page.waitForURL((u) => /^\/lab\/[0-9a-f-]{36}$/.test(u.pathname));
+    await waitForPage(page, (u) => /^\/lab\/[0-9a-f-]{36}$/.test(u.pathname));
     await expect.poll(() => page.getByRole("status").first().textContent()).toContain("Lab check saved");
     await expect.poll(() => page.locator("main").textContent()).toMatch(/screening estimate/i);
     await signOut(page);
@@ -133,12 +133,12 @@ describe("every role's journey", () => {
     const manager = person("manager");
     await signInAs(page, manager.email, manager.password);
     await page.getByRole("link", { name: "Weekly summaries" }).click();
-    await page.waitForURL((u) => u.pathname === "/summaries");
+    await waitForPage(page, (u) => u.pathname === "/summaries");
     // At least the eight demo sites (another browser test file adds a site of its own).
     await expect.poll(() => page.getByTestId("week-table").locator("tbody tr").count()).toBeGreaterThanOrEqual(8);
     for (const code of ["QH1", "QF2", "QT3", "QS4", "HR5", "BW6", "AB7", "AB8"]) expect(await page.getByTestId("week-table").locator(`tr[data-site="${code}"]`).count()).toBe(1);
     await page.getByRole("link", { name: "Printable report" }).click();
-    await page.waitForURL((u) => /\/print$/.test(u.pathname));
+    await waitForPage(page, (u) => /\/print$/.test(u.pathname));
     await expect.poll(() => page.locator(".report-header").count()).toBeGreaterThan(0);
     expect(await page.locator(".report-header").first().textContent()).toContain("Marrowby Water Cooperative");
   });
@@ -148,14 +148,14 @@ describe("every role's journey", () => {
     const admin = person("admin");
     await signInAs(page, admin.email, admin.password);
     await page.getByRole("link", { name: "People" }).click();
-    await page.waitForURL((u) => u.pathname === "/admin/people");
+    await waitForPage(page, (u) => u.pathname === "/admin/people");
     const email = `new.technician.${Date.now()}@marrowby.example`;
     const invite = page.locator("form").filter({ has: page.getByRole("button", { name: "Send the invitation" }) });
     await invite.getByLabel("Name", { exact: true }).fill("Perrin Ashdown");
     await invite.getByLabel("E-mail", { exact: true }).fill(email);
     await invite.getByLabel("Role", { exact: true }).selectOption("technician");
     await invite.getByRole("button", { name: "Send the invitation" }).click();
-    await page.waitForURL((u) => /^\/admin\/people\/[0-9a-f-]{36}$/.test(u.pathname));
+    await waitForPage(page, (u) => /^\/admin\/people\/[0-9a-f-]{36}$/.test(u.pathname));
     await expect.poll(() => page.locator("main").textContent()).toContain("Invitation sent");
     const mail = await waitForMessage(inject("mailboxUrl"), (m) => m.to.includes(email), 15_000);
     expect(mail.subject).toBe("You have been invited to Ripplemark");

@@ -1,7 +1,7 @@
 import { describe, expect, inject, it } from "vitest";
 import { DEMO_ORGANISATION, DEMO_PEOPLE, DEMO_SITES } from "#db/demo/scenario.ts";
 import { listMessages, waitForMessage } from "#fakes/smtp/client.ts";
-import { signInAs, useBrowser } from "../support/browser.ts";
+import { signInAs, useBrowser, waitForPage } from "../support/browser.ts";
 
 // A utility manager reads the week (the demo seed leaves the summaries computed), sees every site in
 // the table with its sparkline and status, the heat-map, and opens the printable report; an
@@ -16,7 +16,7 @@ describe("weekly summaries in the browser", () => {
     const page = await browser.page();
     await signInAs(page, manager.email, manager.password);
     await page.locator("nav").getByRole("link", { name: "Weekly summaries", exact: true }).click();
-    await page.waitForURL((u) => u.pathname === "/summaries");
+    await waitForPage(page, (u) => u.pathname === "/summaries");
     await expect.poll(() => page.getByRole("heading", { level: 1 }).textContent()).toMatch(/^Week \d+ of \d{4} · /);
     const table = page.getByTestId("week-table");
     // Browser tests share one database, and another file adds a site of its own: at least the demo's.
@@ -39,7 +39,7 @@ describe("weekly summaries in the browser", () => {
     // Another statistic for the heat-map.
     await page.getByLabel("Statistic").selectOption("completeness");
     await page.getByRole("button", { name: "Redraw" }).click();
-    await page.waitForURL((u) => u.searchParams.get("stat") === "completeness");
+    await waitForPage(page, (u) => u.searchParams.get("stat") === "completeness");
     await expect.poll(() => page.locator("details caption").textContent()).toContain("Data completeness");
   });
 
@@ -50,7 +50,7 @@ describe("weekly summaries in the browser", () => {
     await page.goto("/summaries");
     const week = (await page.getByRole("heading", { level: 1 }).textContent())!;
     await page.getByRole("link", { name: "Printable report" }).click();
-    await page.waitForURL((u) => /^\/summaries\/\d{4}-W\d{2}\/print$/.test(u.pathname));
+    await waitForPage(page, (u) => /^\/summaries\/\d{4}-W\d{2}\/print$/.test(u.pathname));
     const headers = page.locator(".report-header");
     await expect.poll(() => headers.count()).toBe(4); // one per section, each on its own page
     expect(await headers.first().textContent()).toContain(DEMO_ORGANISATION);

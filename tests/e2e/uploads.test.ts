@@ -1,7 +1,7 @@
 import { describe, expect, it } from "vitest";
 import type { Locator, Page } from "playwright-core";
 import { DEMO_PEOPLE } from "#db/demo/scenario.ts";
-import { signInAs, useBrowser } from "../support/browser.ts";
+import { signInAs, useBrowser, waitForPage } from "../support/browser.ts";
 
 const browser = useBrowser();
 
@@ -54,7 +54,7 @@ describe("uploading logger files", () => {
     expect(await selectedText(page.getByLabel("What column 2 (Cond (µS/cm)) holds"))).toBe("Conductivity at the water's temperature");
     await page.getByLabel("Profile name").fill("Quell four-electrode, comma export");
     await page.getByRole("button", { name: "Save the profile" }).click();
-    await page.waitForURL((u) => /^\/import-profiles\/[0-9a-f-]{36}$/.test(u.pathname) && u.searchParams.get("saved") === "created");
+    await waitForPage(page, (u) => /^\/import-profiles\/[0-9a-f-]{36}$/.test(u.pathname) && u.searchParams.get("saved") === "created");
     await expect.poll(() => page.getByRole("status").textContent()).toContain("The profile is saved");
 
     // 2. Two files at once through the file picker.
@@ -91,7 +91,7 @@ describe("uploading logger files", () => {
     // The recent uploads table lists both once they are done, and each links to its page.
     await expect.poll(() => page.getByRole("table", { name: /Uploads/ }).getByRole("link", { name: FILE_4103.name }).count()).toBe(1);
     await page.getByRole("table", { name: /Uploads/ }).getByRole("link", { name: FILE_4103.name }).click();
-    await page.waitForURL((u) => u.pathname.startsWith("/uploads/") && u.pathname.length > "/uploads/".length);
+    await waitForPage(page, (u) => u.pathname.startsWith("/uploads/") && u.pathname.length > "/uploads/".length);
     await expect.poll(() => page.getByTestId("upload-counts").textContent()).toBe("144 readings stored · 0 rows rejected · 0 already stored (skipped)");
 
     // The same file again is recognised before any byte is sent.

@@ -1,7 +1,7 @@
 import { describe, expect, it } from "vitest";
 import type { Locator, Page } from "playwright-core";
 import { DEMO_PEOPLE } from "#db/demo/scenario.ts";
-import { signInAs, useBrowser } from "../support/browser.ts";
+import { signInAs, useBrowser, waitForPage } from "../support/browser.ts";
 
 // The visit form on a tablet in portrait (820 × 1180 CSS pixels), as the demo technician: the
 // results and a pass/fail verdict appear while typing, before anything is saved.
@@ -27,9 +27,9 @@ describe("recording a field visit on a tablet", () => {
     await signInAs(page, tamsin.email, tamsin.password);
 
     await page.getByRole("link", { name: "Field visits" }).click();
-    await page.waitForURL((u) => u.pathname === "/visits");
+    await waitForPage(page, (u) => u.pathname === "/visits");
     await page.getByRole("link", { name: "Record a visit" }).click();
-    await page.waitForURL((u) => u.pathname === "/visits/new");
+    await waitForPage(page, (u) => u.pathname === "/visits/new");
     await page.getByRole("heading", { name: "New field visit" }).waitFor();
 
     // Choosing the site puts in the logger deployed there now (db/demo/scenario.ts: RQ-4103 at QT3).
@@ -93,7 +93,7 @@ describe("recording a field visit on a tablet", () => {
 
     await page.getByRole("textbox", { name: "Notes" }).fill("Guard furred with algae; cleaned with the soft brush.");
     await save.click();
-    await page.waitForURL((u) => /^\/visits\/[0-9a-f-]{36}$/.test(u.pathname) && u.searchParams.get("saved") === "created");
+    await waitForPage(page, (u) => /^\/visits\/[0-9a-f-]{36}$/.test(u.pathname) && u.searchParams.get("saved") === "created");
     await expect.poll(() => page.getByRole("status").first().textContent()).toContain("Visit saved");
     // As computed again on the server and stored.
     expect(await page.getByTestId("fouling-result").textContent()).toContain("Fail");

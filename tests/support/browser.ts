@@ -66,10 +66,20 @@ export async function signInAs(page: Page, email: string, password: string) {
   await page.getByLabel("E-mail").fill(email);
   await page.getByLabel("Password").fill(password);
   await page.getByRole("button", { name: "Sign in" }).click();
-  await page.waitForURL((u) => !u.pathname.startsWith("/sign-in"));
+  await waitForPage(page, (u) => !u.pathname.startsWith("/sign-in"));
 }
 
 export async function signOut(page: Page) {
   await page.getByRole("button", { name: "Sign out" }).click();
-  await page.waitForURL((u) => u.pathname.startsWith("/sign-in"));
+  await waitForPage(page, (u) => u.pathname.startsWith("/sign-in"));
+}
+
+/**
+ * Waits for a navigation to finish: the address matches and the page for it has been rendered.
+ * A client navigation changes the address before React commits the new page, so acting right
+ * after `waitForURL` can hit a same-named field of the page being left.
+ */
+export async function waitForPage(page: Page, url: Parameters<Page["waitForURL"]>[0]) {
+  await page.waitForURL(url);
+  await page.waitForFunction(() => document.body.dataset.location === location.pathname + location.search);
 }
