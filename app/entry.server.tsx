@@ -3,6 +3,7 @@ import { Writable } from "node:stream";
 import type { EntryContext, HandleDataRequestFunction } from "react-router";
 import { ServerRouter } from "react-router";
 import { renderToPipeableStream } from "react-dom/server";
+import { documentMemoKey, memoizeDocument, memoizedDocument, PLACEHOLDER_NONCE } from "./utils/document-memo.server.ts";
 import { NonceContext } from "./utils/nonce.ts";
 import { applySecurityHeaders } from "./utils/security-headers.server.ts";
 
@@ -20,6 +21,19 @@ export default function handleRequest(
   if (request.method.toUpperCase() === "HEAD") {
     return new Response(null, { status: responseStatusCode, headers: responseHeaders });
   }
+  responseHeaders.set("Content-Type", "text/html; charset=utf-8");
+  const send = (body: Buffer<ArrayBuffer>) => {
+    responseHeaders.set("Content-Length", String(body.byteLength));
+    return new Response(body, { headers: responseHeaders, status: responseStatusCode });
+  };
+
+  // Pages that opt in are rendered once per distinct loader data (app/utils/document-memo.server.ts).
+  const memoKey = documentMemoKey(request, responseStatusCode, routerContext);
+  if (memoKey) {
+    const memo = memoizedDocument(memoKey, nonce);
+    if (memo) return send(memo);
+  }
+  const renderNonce = memoKey ? PLACEHOLDER_NONCE : nonce;
 
   // The whole document is rendered before it is sent: no route streams (no Suspense or deferred
   // data), and one buffer written once costs far less CPU than React's many small chunks, each its
@@ -27,11 +41,11 @@ export default function handleRequest(
   return new Promise((resolve, reject) => {
     let timeoutId: ReturnType<typeof setTimeout> | undefined = setTimeout(() => abort(), streamTimeout + 1000);
     const { pipe, abort } = renderToPipeableStream(
-      <NonceContext.Provider value={nonce}>
-        <ServerRouter context={routerContext} url={request.url} nonce={nonce} />
+      <NonceContext.Provider value={renderNonce}>
+        <ServerRouter context={routerContext} url={request.url} nonce={renderNonce} />
       </NonceContext.Provider>,
       {
-        nonce,
+        nonce: renderNonce,
         onAllReady() {
           const chunks: Buffer[] = [];
           const sink = new Writable({
@@ -44,9 +58,10 @@ export default function handleRequest(
             clearTimeout(timeoutId);
             timeoutId = undefined;
             const body = Buffer.concat(chunks);
-            responseHeaders.set("Content-Type", "text/html; charset=utf-8");
-            responseHeaders.set("Content-Length", String(body.byteLength));
-            resolve(new Response(body, { headers: responseHeaders, status: responseStatusCode }));
+            // A render that failed part-way (status now 500) is not kept.
+            if (memoKey && responseStatusCode === 200) resolve(send(memoizeDocument(memoKey, body, nonce)));
+            else if (memoKey) resolve(send(Buffer.from(body.toString("utf8").replaceAll(PLACEHOLDER_NONCE, nonce))));
+            else resolve(send(body));
           });
           sink.on("error", reject);
           pipe(sink);

@@ -16,6 +16,10 @@ import { withParams } from "#app/utils/table-params.ts";
 
 export const meta: Route.MetaFunction = () => [{ title: "Overview · Ripplemark" }];
 
+// Reloaded all day by many people with the same figures: its render is kept per distinct loader
+// data (app/utils/document-memo.server.ts). It renders from its loader data alone.
+export const handle = { memoizeDocument: true };
+
 // Filters and sort from the URL; anything unknown falls back to "all" / status order.
 const params = z.object({
   status: z.enum(SITE_STATUSES).optional().catch(undefined),

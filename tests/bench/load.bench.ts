@@ -84,7 +84,12 @@ children.push(
   }),
 );
 children.push(spawn(process.execPath, [...WORKER_NODE_FLAGS, "--import", "tsx", "app/worker.ts"], { cwd: root, env, stdio: ["ignore", openSync(path.join(root, ".data/load-worker.log"), "w"), "inherit"] }));
-const stop = () => children.forEach((c) => c.kill("SIGTERM"));
+let stopped = false;
+const stop = () => {
+  if (stopped) return;
+  stopped = true;
+  children.forEach((c) => c.kill("SIGTERM"));
+};
 process.on("exit", stop);
 await waitFor(`${ORIGIN}/api/health`, 30_000);
 
