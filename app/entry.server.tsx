@@ -18,6 +18,12 @@ export default function handleRequest(
 ) {
   const nonce = randomBytes(16).toString("base64");
   applySecurityHeaders(responseHeaders, { nonce, document: true });
+  // 503 is what pages answer while the database is away (app/utils/db-errors.server.ts); the
+  // headers of a loader's thrown answer do not reach the document, so they are set here.
+  if (responseStatusCode === 503) {
+    responseHeaders.set("Retry-After", "30");
+    responseHeaders.set("Cache-Control", "no-store");
+  }
   if (request.method.toUpperCase() === "HEAD") {
     return new Response(null, { status: responseStatusCode, headers: responseHeaders });
   }

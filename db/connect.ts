@@ -7,10 +7,25 @@ import type { DB } from "./schema.ts";
 pg.types.setTypeParser(20, (v) => Number(v));
 pg.types.setTypeParser(1700, (v) => Number(v));
 
+/**
+ * A dropped connection (PostgreSQL restarting, every backend terminated) must not crash the process.
+ * The pool reports errors of idle clients on itself; a client that is checked out but between
+ * queries (a query just failed and it is about to be released) has no listener of the pool's, and
+ * the socket's late ECONNRESET would be thrown as an unhandled 'error' event. Every client gets a
+ * listener of its own when it connects (common practice with pg-pool); the pool then drops the
+ * broken client on release.
+ */
+export function guardPool(pool: pg.Pool, label: string) {
+  pool.on("error", (err) => console.error(`${label} idle client error:`, err.message));
+  // Not logged again here: an idle client's error is logged by the pool, a busy one's fails its query.
+  pool.on("connect", (client) => {
+    client.on("error", () => {});
+  });
+}
+
 export function createPool(connectionString: string, max = 10) {
   const pool = new pg.Pool({ connectionString, max, idleTimeoutMillis: 30_000 });
-  // A dropped connection (e.g. PostgreSQL restarting) must not crash the process: the pool replaces it.
-  pool.on("error", (err) => console.error("[db] idle client error:", err.message));
+  guardPool(pool, "[db]");
   return pool;
 }
 

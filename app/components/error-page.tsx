@@ -6,6 +6,7 @@ const COPY: Record<number, { title: string; body: string }> = {
   403: { title: "Not open to your role", body: "This part of Ripplemark belongs to another role. If you need it, ask an administrator." },
   404: { title: "Nothing here", body: "The page or record you asked for does not exist, or it has been removed." },
   500: { title: "Something went wrong on our side", body: "The error has been logged. Try again in a moment; nothing you entered has been lost." },
+  503: { title: "Ripplemark cannot reach its database just now", body: "This usually passes within a minute (a restart or maintenance). Nothing already saved is affected; try again shortly, and tell an administrator if it goes on." },
 };
 
 export function ErrorPage({ status, detail, stack }: { status: number; detail?: string; stack?: string }) {

@@ -1,4 +1,5 @@
 import pg from "pg";
+import { guardPool } from "#db/connect.ts";
 import { getEnv } from "#app/utils/env.server.ts";
 
 // A raw pg pool for work Kysely does not do (COPY streams). Same database, separate small pool.
@@ -8,7 +9,7 @@ export function rawPool() {
   if (!globalForPool.__ripplemarkRawPool) {
     // Jobs stage whole files in temporary tables: give them room in memory before spilling to disk.
     const pool = new pg.Pool({ connectionString: getEnv().DATABASE_URL, max: 4, options: "-c temp_buffers=256MB" });
-    pool.on("error", (err) => console.error("[db] idle raw client error:", err.message));
+    guardPool(pool, "[db raw]");
     globalForPool.__ripplemarkRawPool = pool;
   }
   return globalForPool.__ripplemarkRawPool;

@@ -4,6 +4,7 @@ import { createCookie, redirect } from "react-router";
 import { db } from "./db.server.ts";
 import { getEnv } from "./env.server.ts";
 import type { SessionUser } from "#app/models/person.server.ts";
+import { databaseUnavailable, isDatabaseUnavailable } from "./db-errors.server.ts";
 
 // Sessions live in the `session` table; the cookie carries only a random token, signed with
 // SESSION_SECRET (comma-separated list: the first signs, all verify, so secrets can rotate).
@@ -85,7 +86,12 @@ async function lookUpSessionUser(request: Request): Promise<LiveUser | null> {
     .where("session.revoked_at", "is", null)
     .where("session.expires_at", ">", new Date())
     .where("person.disabled_at", "is", null)
-    .executeTakeFirst();
+    .executeTakeFirst()
+    .catch((error: unknown) => {
+      // Every page asks for the person first: with PostgreSQL away, say so (503, try again).
+      if (isDatabaseUnavailable(error)) throw databaseUnavailable();
+      throw error;
+    });
   return row ?? null;
 }
 

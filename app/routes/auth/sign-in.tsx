@@ -6,6 +6,7 @@ import { AuthFrame } from "#app/components/auth-frame.tsx";
 import { Field, FormErrors } from "#app/components/forms.tsx";
 import { assertSameOrigin, authenticator, getOptionalUser, safeRedirect, SignInError } from "#app/utils/auth.server.ts";
 import { signInSchema } from "#app/utils/auth-schemas.ts";
+import { isDatabaseUnavailable } from "#app/utils/db-errors.server.ts";
 import { createSession } from "#app/utils/session.server.ts";
 
 export const meta: Route.MetaFunction = () => [{ title: "Sign in · Ripplemark" }];
@@ -29,6 +30,10 @@ export async function action({ request }: Route.ActionArgs) {
   } catch (error) {
     if (error instanceof SignInError) {
       return data({ result: submission.reply({ formErrors: [error.message], hideFields: ["password"] }) }, { status: error.status });
+    }
+    if (isDatabaseUnavailable(error)) {
+      const message = "Ripplemark cannot reach its database just now. Try again in a minute; tell an administrator if it goes on.";
+      return data({ result: submission.reply({ formErrors: [message], hideFields: ["password"] }) }, { status: 503, headers: { "Retry-After": "30" } });
     }
     throw error;
   }
