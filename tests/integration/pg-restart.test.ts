@@ -32,6 +32,13 @@ async function until<T>(what: string, ms: number, probe: () => Promise<T | undef
 }
 
 const page = (p: string) => fetch(origin + p, { headers: { Cookie: cookie }, redirect: "manual" });
+const postSignIn = (email: string) =>
+  fetch(`${origin}/sign-in`, {
+    method: "POST",
+    redirect: "manual",
+    headers: { "Content-Type": "application/x-www-form-urlencoded", Origin: origin },
+    body: new URLSearchParams({ email, password: TEST_PASSWORD, redirectTo: "/" }),
+  });
 
 beforeAll(async () => {
   server = await ownPostgres();
@@ -53,12 +60,7 @@ beforeAll(async () => {
   app.stdout!.on("data", (b: Buffer) => (appLog += b.toString()));
   app.stderr!.on("data", (b: Buffer) => (appLog += b.toString()));
   await until("the app answers", 30_000, async () => ((await fetch(`${origin}/api/health`)).ok ? true : undefined));
-  const res = await fetch(`${origin}/sign-in`, {
-    method: "POST",
-    redirect: "manual",
-    headers: { "Content-Type": "application/x-www-form-urlencoded", Origin: origin },
-    body: new URLSearchParams({ email: "manager@test.example", password: TEST_PASSWORD, redirectTo: "/" }),
-  });
+  const res = await postSignIn("manager@test.example");
   expect(res.status).toBe(302);
   cookie = res.headers.get("Set-Cookie")!.split(";")[0];
 }, 120_000);
@@ -84,12 +86,7 @@ describe("PostgreSQL stopped and started again while the app runs", () => {
     expect(down.headers.get("Retry-After")).toBe("30");
     expect(await down.text()).toContain("cannot reach its database");
     expect((await fetch(`${origin}/api/health`)).status).toBe(503);
-    const signIn = await fetch(`${origin}/sign-in`, {
-      method: "POST",
-      redirect: "manual",
-      headers: { "Content-Type": "application/x-www-form-urlencoded", Origin: origin },
-      body: new URLSearchParams({ email: "officer@test.example", password: TEST_PASSWORD, redirectTo: "/" }),
-    });
+    const signIn = await postSignIn("officer@test.example");
     expect(signIn.status).toBe(503);
     expect(await signIn.text()).toContain("cannot reach its database just now");
     await until("the change feed notices", 10_000, async () => (appLog.includes("[change-feed] not listening") ? true : undefined));
