@@ -440,6 +440,19 @@ export interface ExceedanceTable {
   closed_at: Timestamp | null;
 }
 
+/** One version of an alert rule (migration 0010: written by a trigger on alert_rule). */
+export interface AlertRuleChangeTable {
+  id: Generated<number>;
+  rule_id: string;
+  /** Who saved it (the rule's updated_by); null for the default rules Ripplemark creates. */
+  person_id: string | null;
+  at: Timestamp;
+  action: "created" | "changed";
+  /** The whole rule row as JSON; null when created. */
+  before: ColumnType<unknown, string | null, string | null>;
+  after: ColumnType<unknown, string, string>;
+}
+
 export interface ExceedanceAuditTable {
   id: Generated<number>;
   exceedance_id: string;
@@ -476,6 +489,7 @@ export interface EmailSendTable {
 
 export interface AlertTables {
   alert_rule: AlertRuleTable;
+  alert_rule_change: AlertRuleChangeTable;
   exceedance: ExceedanceTable;
   exceedance_audit: ExceedanceAuditTable;
   notification: NotificationTable;

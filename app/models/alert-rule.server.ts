@@ -1,3 +1,4 @@
+import { isDeepStrictEqual } from "node:util";
 import type { Insertable, Transaction } from "kysely";
 import type { AlertRuleTable, DB, RoleName, SiteKind } from "#db/schema.ts";
 import { levelAtSiteReference, parseRuleCondition, ruleCoversSite, ruleVisibleTo } from "#app/lib/quality/alert-rules.ts";
@@ -77,10 +78,11 @@ export async function updateRule(actorId: string, id: string, values: RuleValues
       before.name === values.name &&
       before.parameter === values.parameter &&
       before.condition === values.condition &&
-      JSON.stringify(before.params) === JSON.stringify(JSON.parse(values.params as string)) &&
-      JSON.stringify(before.site_ids) === JSON.stringify(values.site_ids ?? null) &&
-      JSON.stringify(before.site_kinds) === JSON.stringify(values.site_kinds ?? null) &&
-      JSON.stringify(before.notify_roles) === JSON.stringify(values.notify_roles ?? []) &&
+      // Deep equality, not JSON text: jsonb gives its keys back in its own order.
+      isDeepStrictEqual(before.params, JSON.parse(values.params as string)) &&
+      isDeepStrictEqual(before.site_ids, values.site_ids ?? null) &&
+      isDeepStrictEqual(before.site_kinds, values.site_kinds ?? null) &&
+      isDeepStrictEqual(before.notify_roles, values.notify_roles ?? []) &&
       before.email === (values.email ?? false) &&
       before.emails_per_hour === (values.emails_per_hour ?? 4) &&
       before.enabled === (values.enabled ?? true) &&
@@ -159,4 +161,17 @@ export async function thresholdLinesForSite(
 /** Sites for the rule form's choices and for naming a rule's sites. */
 export async function siteChoices(trx: Executor = db) {
   return trx.selectFrom("site").select(["id", "code", "name", "kind", "reference_c"]).orderBy("code").execute();
+}
+
+/** The rule's saved versions, newest first (written by a trigger on alert_rule, migration 0010). */
+export async function ruleHistory(ruleId: string, limit = 50, trx: Executor = db) {
+  return trx
+    .selectFrom("alert_rule_change as c")
+    .leftJoin("person as p", "p.id", "c.person_id")
+    .select(["c.id", "c.at", "c.action", "c.before", "c.after", "p.name as personName"])
+    .where("c.rule_id", "=", ruleId)
+    .orderBy("c.at", "desc")
+    .orderBy("c.id", "desc")
+    .limit(limit)
+    .execute();
 }

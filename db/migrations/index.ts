@@ -8,6 +8,7 @@ import * as m0006 from "./0006_alerts.ts";
 import * as m0007 from "./0007_field_visits.ts";
 import * as m0008 from "./0008_weekly_summaries.ts";
 import * as m0009 from "./0009_change_notices.ts";
+import * as m0010 from "./0010_alert_rule_history.ts";
 
 // Every migration, in order. Add a new file here when you add one to this folder (a test checks
 // that the folder and this list agree).
@@ -21,4 +22,5 @@ export const migrations: Record<string, Migration> = {
   "0007_field_visits": m0007,
   "0008_weekly_summaries": m0008,
   "0009_change_notices": m0009,
+  "0010_alert_rule_history": m0010,
 };

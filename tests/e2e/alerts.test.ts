@@ -122,7 +122,9 @@ describe("alert rules, exceedances and e-mail", () => {
     await page.getByRole("button", { name: "Save the rule" }).click();
     await waitForPage(page, (u) => /^\/alert-rules\/[0-9a-f-]{36}$/.test(u.pathname) && u.searchParams.get("saved") === "created");
     expect(await page.getByRole("status").textContent()).toContain("The rule is saved");
-    expect(await page.locator("dd").filter({ hasText: "above 3 mS/cm" }).textContent()).toContain("for at least 30 min; clears at 2.8 mS/cm");
+    // The summary of the rule (the history below it says the same of the first version).
+    expect(await page.locator('section[aria-labelledby="rule-summary"] dd').filter({ hasText: "above 3 mS/cm" }).textContent()).toContain("for at least 30 min; clears at 2.8 mS/cm");
+    expect(await page.getByTestId("rule-history").textContent()).toMatch(/Created .* by /);
     const ruleId = new URL(page.url()).pathname.split("/").pop()!;
 
     // The rule first checks QF2's history in the background; let that finish so the event below

@@ -311,6 +311,42 @@ describe("who sees and changes rules", () => {
     expect(rows.map((r) => r.payload)).toContainEqual({ siteId, fromWeek: "2025-06-02", toWeek: "2025-06-02" });
   });
 
+  it("keeps every saved version of a rule and shows what each one changed, and by whom", async () => {
+    const form = {
+      intent: "save", name: "ALR9 above 2.5 mS/cm", parameter: "sc25", condition: "above", threshold: "2.5", clearLevel: "2.4",
+      valueUnit: "mS/cm", minDuration: "30", durationUnit: "min", referenceC: "25", scope: "all", notifyRoles: "officer",
+      emailsPerHour: "4", enabled: "on", guidelineSource: "",
+    };
+    const res = await request("/alert-rules/new", { jar: jars.officer, form });
+    const id = res.headers.get("Location")!.match(/\/alert-rules\/([0-9a-f-]{36})/)![1];
+    const save = (changes: Record<string, string>) => request(`/alert-rules/${id}`, { jar: jars.officer, form: { ...form, ...changes } });
+    expect((await save({ threshold: "3", clearLevel: "2.8" })).headers.get("Location")).toContain("saved=saved");
+    // Saving the same values again is no new version.
+    expect((await save({ threshold: "3", clearLevel: "2.8" })).headers.get("Location")).toContain("saved=unchanged");
+    await request(`/alert-rules/${id}`, { jar: jars.officer, form: { intent: "toggle", enabled: "false" } });
+    // Any writer is recorded, not only the pages (the trigger is on the table).
+    await db.updateTable("alert_rule").set({ guideline_source: "Local permit, condition 7" }).where("id", "=", id).execute();
+
+    const versions = await db.selectFrom("alert_rule_change").select(["action", "person_id", "before", "after"]).where("rule_id", "=", id).orderBy("id").execute();
+    expect(versions.map((v) => v.action)).toEqual(["created", "changed", "changed", "changed"]);
+    expect(versions[0].before).toBeNull();
+    expect((versions[1].before as { params: { threshold: number } }).params.threshold).toBe(2500);
+    expect((versions[1].after as { params: { threshold: number } }).params.threshold).toBe(3000);
+    expect((versions[2].after as { enabled: boolean }).enabled).toBe(false);
+    const officerId = (await db.selectFrom("person").select("id").where("email", "=", "officer@test.example").executeTakeFirstOrThrow()).id;
+    expect(versions.slice(0, 3).every((v) => v.person_id === officerId)).toBe(true);
+
+    const html = await (await request(`/alert-rules/${id}`, { jar: jars.officer })).text();
+    const history = html.slice(html.indexOf('data-testid="rule-history"'));
+    expect(history).toContain("Local permit, condition 7");
+    expect(history).toMatch(/<del[^>]*>On<\/del>.*?<ins[^>]*>Off<\/ins>/s);
+    expect(history).toMatch(/<del[^>]*>Stays above a level: [^<]*2\.5[^<]*<\/del>.*?<ins[^>]*>Stays above a level: [^<]*3[^<]*<\/ins>/s);
+    expect(history).toContain("Created");
+    expect(history).toContain("by Test officer");
+    // The rows' JSON stays on the server: the page carries words, not the stored versions.
+    expect(html).not.toContain('"emails_per_hour"');
+  });
+
   it("refuses a clear level on the wrong side of the threshold, naming the field", async () => {
     const res = await request("/alert-rules/new", {
       jar: jars.officer,

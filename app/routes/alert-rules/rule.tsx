@@ -4,9 +4,10 @@ import { z } from "zod";
 import type { Route } from "./+types/rule";
 import { CONDITION_HELP, CONDITION_LABELS, PARAMETER_NAMES, describeCondition, describeScope, parseRuleCondition, ruleVisibleTo } from "#app/lib/quality/alert-rules.ts";
 import { formatInZone } from "#app/lib/zoned-time.ts";
-import { eventCountsOfRule, findRule, setRuleEnabled, siteChoices, updateRule } from "#app/models/alert-rule.server.ts";
+import { describeRuleChange, type RuleSnapshot } from "#app/lib/quality/rule-history.ts";
+import { eventCountsOfRule, findRule, ruleHistory, setRuleEnabled, siteChoices, updateRule } from "#app/models/alert-rule.server.ts";
 import { requireUser } from "#app/utils/auth.server.ts";
-import { ANY_ROLE, REVIEW_ROLES, roleAllowed } from "#app/utils/permissions.ts";
+import { ANY_ROLE, REVIEW_ROLES, ROLE_LABELS, roleAllowed } from "#app/utils/permissions.ts";
 import { SITE_KIND_LABELS } from "#app/utils/site-labels.ts";
 import { BackLink, SavedNotice } from "#app/routes/admin/+shared/ui.tsx";
 import { inputFromRule, ruleFromInput, ruleSchema } from "./+shared/rule-schema.ts";
@@ -27,7 +28,16 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const rule = await ruleOr404(params.ruleId);
   if (!ruleVisibleTo(user.role, rule)) throw data("This rule does not tell your role.", { status: 403 });
   const canEdit = roleAllowed(user.role, REVIEW_ROLES);
-  const [sites, counts] = await Promise.all([siteChoices(), eventCountsOfRule(rule.id)]);
+  const [sites, counts, versions] = await Promise.all([siteChoices(), eventCountsOfRule(rule.id), ruleHistory(rule.id)]);
+  const labels = { sites, kinds: SITE_KIND_LABELS, roles: ROLE_LABELS };
+  // Each saved version as what it changed, in words (no raw rows: ids and columns stay here).
+  const history = versions.map((v) => ({
+    id: String(v.id),
+    at: formatInZone(v.at, "Europe/London"),
+    by: v.personName ?? (v.action === "created" ? "Ripplemark (a rule it starts with)" : "someone no longer listed"),
+    action: v.action,
+    changes: describeRuleChange(v.before as RuleSnapshot | null, v.after as RuleSnapshot, labels),
+  }));
   const rc = parseRuleCondition(rule.condition, rule.params);
   return {
     canEdit,
@@ -48,6 +58,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
       updated: `${formatInZone(rule.updated_at, "Europe/London")}${rule.updatedByName ? ` by ${rule.updatedByName}` : ""}`,
     },
     counts,
+    history,
     // Only editors get the form's values and the site list.
     form: canEdit ? { defaultValue: inputFromRule(rule), sites } : null,
   };
@@ -87,7 +98,7 @@ const SAVED = {
 };
 
 export default function AlertRule({ loaderData, actionData }: Route.ComponentProps) {
-  const { rule, canEdit, counts, form } = loaderData;
+  const { rule, canEdit, counts, form, history } = loaderData;
   return (
     <div className="max-w-3xl space-y-5">
       <BackLink to="/alert-rules">Alert rules</BackLink>
@@ -136,6 +147,7 @@ export default function AlertRule({ loaderData, actionData }: Route.ComponentPro
         {rule.shipped ? <p className="text-sm text-ink-500">One of the rules Ripplemark starts with; change it to fit your sites and permits.</p> : null}
       </section>
       <ScreeningCaution />
+      <RuleHistory history={history} />
       {canEdit && form ? (
         <>
           <Form method="post">
@@ -150,5 +162,47 @@ export default function AlertRule({ loaderData, actionData }: Route.ComponentPro
         <p className="text-ink-700">Only environmental officers and administrators can change alert rules.</p>
       )}
     </div>
+  );
+}
+
+function RuleHistory({ history }: { history: Route.ComponentProps["loaderData"]["history"] }) {
+  return (
+    <section className="card space-y-3" aria-labelledby="rule-history">
+      <h2 id="rule-history" className="text-base">History of this rule</h2>
+      {history.length === 0 ? (
+        <p className="text-ink-700">No saved versions are recorded.</p>
+      ) : (
+        <ol className="space-y-3" data-testid="rule-history">
+          {history.map((h) => (
+            <li key={h.id} className="border-l-2 border-ink-200 pl-3">
+              <p className="text-sm">
+                <span className="font-semibold">{h.action === "created" ? "Created" : "Changed"}</span> {h.at} by {h.by}
+              </p>
+              {h.changes.length === 0 ? (
+                <p className="text-sm text-ink-500">Saved with nothing that shows here changed.</p>
+              ) : (
+                <dl className="grid gap-x-3 text-sm sm:grid-cols-[8rem_1fr]">
+                  {h.changes.map((c) => (
+                    <div key={c.label} className="contents">
+                      <dt className="text-ink-500">{c.label}</dt>
+                      <dd>
+                        {c.before !== null ? (
+                          <>
+                            <del className="text-ink-500">{c.before}</del>
+                            <span aria-hidden="true"> → </span>
+                            <span className="sr-only"> changed to </span>
+                          </>
+                        ) : null}
+                        <ins className="no-underline">{c.after}</ins>
+                      </dd>
+                    </div>
+                  ))}
+                </dl>
+              )}
+            </li>
+          ))}
+        </ol>
+      )}
+    </section>
   );
 }
