@@ -148,11 +148,13 @@ export async function uploadStatuses(ids: string[]) {
   if (ids.length === 0) return [];
   return db
     .selectFrom("upload")
+    .innerJoin("site", "site.id", "upload.site_id")
     .select([
-      "id", "file_name", "status", "message", "size_bytes", "bytes_processed", "rows_total", "rows_accepted",
-      "rows_rejected", "rows_duplicate", "first_reading_at", "last_reading_at", "duplicate_of", "uploaded_by",
+      "upload.id", "upload.file_name", "upload.status", "upload.message", "upload.size_bytes", "upload.bytes_processed",
+      "upload.rows_total", "upload.rows_accepted", "upload.rows_rejected", "upload.rows_duplicate", "upload.first_reading_at",
+      "upload.last_reading_at", "upload.duplicate_of", "upload.uploaded_by", "site.time_zone as site_time_zone",
     ])
-    .where("id", "in", ids)
+    .where("upload.id", "in", ids)
     .execute();
 }
 
@@ -169,7 +171,8 @@ export async function listUploads(options: { uploadedBy?: string; limit: number;
       .select([
         "upload.id", "upload.file_name", "upload.status", "upload.created_at", "upload.rows_accepted", "upload.rows_rejected",
         "upload.rows_duplicate", "upload.first_reading_at", "upload.last_reading_at", "upload.message",
-        "site.code as site_code", "logger.serial as logger_serial", "person.name as uploaded_by", "import_profile.name as profile_name",
+        "site.code as site_code", "site.time_zone as site_time_zone", "logger.serial as logger_serial", "person.name as uploaded_by",
+        "import_profile.name as profile_name",
       ])
       .orderBy(`upload.${options.sort}`, options.dir)
       .orderBy("upload.id")
@@ -193,8 +196,8 @@ export async function getUpload(id: string) {
       "upload.rows_total", "upload.rows_accepted", "upload.rows_rejected", "upload.rows_duplicate", "upload.bytes_processed",
       "upload.first_reading_at", "upload.last_reading_at", "upload.finished_at", "upload.duplicate_of", "upload.uploaded_by as uploaded_by_id",
       "upload.profile_id", "upload.object_key", "upload.site_id",
-      "site.code as site_code", "site.name as site_name", "logger.serial as logger_serial", "person.name as uploaded_by",
-      "import_profile.name as profile_name",
+      "site.code as site_code", "site.name as site_name", "site.time_zone as site_time_zone", "logger.serial as logger_serial",
+      "person.name as uploaded_by", "import_profile.name as profile_name",
     ])
     .where("upload.id", "=", id)
     .executeTakeFirst();

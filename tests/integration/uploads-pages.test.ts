@@ -142,6 +142,29 @@ describe("who may see an upload", () => {
   });
 });
 
+describe("times at the site's clock", () => {
+  it("shows an upload's readings and times in the site's time zone, on the pages and in status polling", async () => {
+    const london = (
+      await db
+        .insertInto("site")
+        .values({ code: "UPG2", name: "Upload page spring", kind: "spring", latitude: 54.2, longitude: -2.9, time_zone: "Europe/London" })
+        .returning("id")
+        .executeTakeFirstOrThrow()
+    ).id;
+    const logger = (await db.insertInto("logger").values({ serial: "UPG-0002" }).returning("id").executeTakeFirstOrThrow()).id;
+    const up = await uploadFile(technician, { fileName: "summer-round.csv", body: csv("2025-06-02T00:00:00Z", 4), siteId: london, loggerId: logger, profileId: wrongProfileId });
+    await processUpload(up.uploadId!);
+    // 00:00–00:45 UTC on 2 June is 01:00–01:45 British Summer Time (UTC+1 from the last Sunday of
+    // March to the last Sunday of October: the Summer Time Order in force in the UK).
+    const html = await (await request(`/uploads/${up.uploadId}`, { jar: technician })).text();
+    expect(html).toContain("2 Jun 2025, 01:00 BST to 2 Jun 2025, 01:45 BST");
+    const status = (await (await request(`/api/uploads?ids=${up.uploadId}`, { jar: technician })).json()) as { uploads: { siteTimeZone: string }[] };
+    expect(status.uploads[0].siteTimeZone).toBe("Europe/London");
+    // A site on UTC keeps UTC (its last row, at 01:00, was rejected).
+    expect(await (await request(`/uploads/${ownUpload}`, { jar: technician })).text()).toContain("1 Mar 2025, 00:00 UTC to 1 Mar 2025, 00:45 UTC");
+  });
+});
+
 describe("the profile editor's save", () => {
   it("refuses dates that read either way until day-first or month-first is chosen", async () => {
     const res = await request("/import-profiles/new", { jar: technician, form: editorForm() });

@@ -8,7 +8,7 @@ import { reprocessUpload, UploadRefused, uploadErrors } from "#app/models/upload
 import { requireUser } from "#app/utils/auth.server.ts";
 import { FIELD_ROLES } from "#app/utils/permissions.ts";
 import { pageWindow, parseTableParams } from "#app/utils/table-params.ts";
-import { countsText, formatBytes, formatUtc, ProgressBar, rangeText, StatusBadge } from "./+shared/status-views.tsx";
+import { countsText, formatBytes, formatAtSite, ProgressBar, rangeText, StatusBadge } from "./+shared/status-views.tsx";
 import { requireVisibleUpload } from "./+shared/upload-access.server.ts";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.upload.fileName ?? "Upload"} · Ripplemark` }];
@@ -33,8 +33,9 @@ export async function loader({ request, params }: Route.LoaderArgs) {
       logger: upload.logger_serial,
       profile: upload.profile_id ? { id: upload.profile_id, name: upload.profile_name ?? "(removed)" } : null,
       uploadedBy: upload.uploaded_by,
-      uploadedAt: formatUtc(upload.created_at)!,
-      finishedAt: formatUtc(upload.finished_at),
+      // Times at the site's clock, as the logger's readings are read there.
+      uploadedAt: formatAtSite(upload.created_at, upload.site_time_zone)!,
+      finishedAt: formatAtSite(upload.finished_at, upload.site_time_zone),
       sha256: upload.sha256,
       size: formatBytes(Number(upload.size_bytes)),
       sizeBytes: Number(upload.size_bytes),
@@ -43,7 +44,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
       rowsAccepted: upload.rows_accepted,
       rowsRejected: upload.rows_rejected,
       rowsDuplicate: upload.rows_duplicate,
-      range: rangeText(upload.first_reading_at, upload.last_reading_at),
+      range: rangeText(upload.first_reading_at, upload.last_reading_at, upload.site_time_zone),
       duplicateOf: upload.duplicate_of,
     },
     errors: errors.rows.map((e) => ({ row: e.row_number, column: e.column_name, value: e.raw_value, reason: e.reason })),

@@ -8,7 +8,7 @@ import { requireUser } from "#app/utils/auth.server.ts";
 import { FIELD_ROLES } from "#app/utils/permissions.ts";
 import { pageWindow, parseTableParams } from "#app/utils/table-params.ts";
 import { refusePost } from "../import-profiles/+shared/refuse-post.server.ts";
-import { formatUtc, StatusBadge } from "./+shared/status-views.tsx";
+import { formatAtSite, StatusBadge } from "./+shared/status-views.tsx";
 import { UploadQueue } from "./+shared/upload-queue.tsx";
 
 export const meta: Route.MetaFunction = () => [{ title: "Uploads · Ripplemark" }];
@@ -42,7 +42,7 @@ export async function loader({ request }: Route.LoaderArgs) {
       id: u.id,
       fileName: u.file_name,
       status: u.status,
-      created: formatUtc(u.created_at)!,
+      created: formatAtSite(u.created_at, u.site_time_zone)!,
       site: u.site_code,
       logger: u.logger_serial,
       uploadedBy: u.uploaded_by,

@@ -52,6 +52,7 @@ export async function loader({ request }: Route.LoaderArgs) {
         rowsDuplicate: r.rows_duplicate,
         firstReadingAt: r.first_reading_at,
         lastReadingAt: r.last_reading_at,
+        siteTimeZone: r.site_time_zone,
         duplicateOf: r.duplicate_of,
       })),
     },

@@ -227,7 +227,7 @@ export function QueueEntry({
         {it.phase === "done" && status ? (
           <>
             <p data-testid="upload-counts">{countsText(status)}</p>
-            {rangeText(status.firstReadingAt, status.lastReadingAt) ? <p>Covers {rangeText(status.firstReadingAt, status.lastReadingAt)}</p> : null}
+            {rangeText(status.firstReadingAt, status.lastReadingAt, status.siteTimeZone) ? <p>Covers {rangeText(status.firstReadingAt, status.lastReadingAt, status.siteTimeZone)}</p> : null}
             {status.message ? <p className="text-ink-700">{status.message}</p> : null}
           </>
         ) : null}

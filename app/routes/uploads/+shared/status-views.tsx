@@ -49,9 +49,10 @@ export function ProgressBar({ label, percent, text, tone = "lake" }: { label: st
   );
 }
 
-export function formatUtc(value: string | Date | null) {
+/** A time at the site's clock, with the zone's abbreviation ("3 Jun 2019, 01:00 BST"). */
+export function formatAtSite(value: string | Date | null, timeZone: string) {
   if (!value) return null;
-  return formatInZone(typeof value === "string" ? new Date(value) : value, "UTC");
+  return formatInZone(typeof value === "string" ? new Date(value) : value, timeZone);
 }
 
 export function formatBytes(bytes: number) {
@@ -71,9 +72,9 @@ export function countsText(c: { rowsAccepted: number; rowsRejected: number; rows
   ].join(" · ");
 }
 
-export function rangeText(first: string | Date | null, last: string | Date | null) {
-  const a = formatUtc(first);
-  const b = formatUtc(last);
+export function rangeText(first: string | Date | null, last: string | Date | null, timeZone: string) {
+  const a = formatAtSite(first, timeZone);
+  const b = formatAtSite(last, timeZone);
   if (!a || !b) return null;
   return a === b ? a : `${a} to ${b}`;
 }

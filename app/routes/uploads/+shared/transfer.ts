@@ -16,6 +16,8 @@ export type UploadStatusJson = {
   rowsRejected: number;
   rowsDuplicate: number;
   firstReadingAt: string | null;
+  /** The site's IANA time zone: times are shown at its clock. */
+  siteTimeZone: string;
   lastReadingAt: string | null;
   duplicateOf: string | null;
 };
