@@ -85,7 +85,8 @@ describe("uploading logger files", () => {
       const bar = entry.getByRole("progressbar", { name: `Progress of ${file.name}` });
       expect(await bar.getAttribute("aria-valuenow")).toBe("100");
       expect(await entry.getByTestId("upload-counts").textContent()).toBe(`${rows} readings stored · 0 rows rejected · 0 already stored (skipped)`);
-      expect(await entry.getByTestId("upload-outcome").textContent()).toContain("Covers 1 Jun 2019, 00:00 UTC to");
+      // At the demo site's clock (Europe/London): 00:00 UTC on 1 June is 01:00 British Summer Time.
+      expect(await entry.getByTestId("upload-outcome").textContent()).toContain("Covers 1 Jun 2019, 01:00 BST to");
     }
 
     // The recent uploads table lists both once they are done, and each links to its page.
@@ -192,6 +193,7 @@ describe("uploading logger files", () => {
     await page.getByRole("button", { name: "Upload 1 file" }).click();
     await expect.poll(() => entry.getAttribute("data-phase"), { timeout: 90_000, interval: 250 }).toBe("done");
     expect(await entry.getByTestId("upload-counts").textContent()).toBe("48 readings stored · 0 rows rejected · 0 already stored (skipped)");
-    expect(await entry.getByTestId("upload-outcome").textContent()).toContain("Covers 3 Jun 2019, 00:00 UTC to 3 Jun 2019, 23:30 UTC");
+    // 00:00–23:30 UTC at the site's clock (Europe/London, British Summer Time, UTC+1).
+    expect(await entry.getByTestId("upload-outcome").textContent()).toContain("Covers 3 Jun 2019, 01:00 BST to 4 Jun 2019, 00:30 BST");
   });
 });
