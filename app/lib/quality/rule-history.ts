@@ -5,7 +5,7 @@ import { CONDITION_LABELS, describeCondition, describeScope, PARAMETER_NAMES, pa
 // the same facts the rule page shows, and a change is the facts that differ. Pure: the page passes
 // the site list and the labels.
 
-/** The columns of an alert_rule row that a person sets (as stored, JSON from the history table). */
+/** The columns of an alert_rule row that a person sets (a stored row, or one version from the history table). */
 export type RuleSnapshot = {
   name: string;
   parameter: AlertParameterName;

@@ -1,4 +1,5 @@
 import { z } from "zod";
+import type { RuleSnapshot } from "#app/lib/quality/rule-history.ts";
 import { ROLE_NAMES, SITE_KINDS, type RoleName, type SiteKind } from "#db/schema.ts";
 import {
   ALERT_CONDITIONS,
@@ -11,8 +12,6 @@ import {
   durationFactor,
   inUnit,
   unitFactor,
-  type AlertConditionName,
-  type AlertParameterName,
 } from "#app/lib/quality/alert-rules.ts";
 
 // The alert-rule form, shared by the browser (checks as people type) and the server (the real
@@ -172,22 +171,8 @@ export function ruleFromInput(v: RuleInput) {
   };
 }
 
-type StoredRule = {
-  name: string;
-  parameter: AlertParameterName;
-  condition: AlertConditionName;
-  params: unknown;
-  site_ids: string[] | null;
-  site_kinds: SiteKind[] | null;
-  notify_roles: RoleName[];
-  email: boolean;
-  emails_per_hour: number;
-  enabled: boolean;
-  guideline_source: string;
-};
-
 /** The form's starting values for a stored rule, in the units it was entered in. */
-export function inputFromRule(r: StoredRule): Record<string, string | string[] | boolean | undefined> {
+export function inputFromRule(r: RuleSnapshot): Record<string, string | string[] | boolean | undefined> {
   const p = (r.params ?? {}) as Record<string, unknown>;
   const unit = typeof p.unit === "string" && PARAMETER_UNITS[r.parameter].some((u) => u.unit === p.unit) ? p.unit : PARAMETER_UNITS[r.parameter][0].unit;
   const f = unitFactor(r.parameter, unit);
